@@ -1,0 +1,9 @@
+import { defineConfig } from 'drizzle-kit';
+
+export default defineConfig({
+	schema: './src/lib/server/db/schema/index.ts',
+	out: './drizzle',
+	dialect: 'postgresql',
+	casing: 'snake_case',
+	dbCredentials: { url: process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:55432/phonotherm' }
+});
