@@ -1,0 +1,190 @@
+import { describe, expect, it } from 'vitest';
+import { MAX_ROWS, MIN_POINTS, parseSpectrum } from './parse';
+import { EngineError } from './types';
+
+/** n rows of "x<sep>counts" on an ascending axis starting at x0. */
+function rows(n: number, sep = ',', x0 = 400, step = 0.5): string[] {
+	return Array.from({ length: n }, (_, i) => `${x0 + i * step}${sep}${100 + (i % 7)}`);
+}
+
+/** Parse and return the EngineError it must throw. */
+function refusal(name: string, text: string): EngineError {
+	try {
+		parseSpectrum({ name, text });
+	} catch (e) {
+		expect(e).toBeInstanceOf(EngineError);
+		return e as EngineError;
+	}
+	throw new Error('expected a refusal');
+}
+
+describe('parseSpectrum: accepted files', () => {
+	it('reads CSV with a header and comment lines', () => {
+		const text = ['# exported by the spectrometer', 'shift,counts', ...rows(30)].join('\n');
+		const s = parseSpectrum({ name: 'a.csv', text });
+		expect(s.format).toBe('csv');
+		expect(s.x.length).toBe(30);
+		expect(s.xLabel).toBe('shift');
+		expect(s.x[0]).toBe(400);
+		expect(s.y[1]).toBe(101);
+		// Line 3 of the file holds the first data row (comment, header, then data).
+		expect(s.rows[0]).toBe(3);
+	});
+
+	it('reads TSV without a header and with CRLF line ends', () => {
+		const s = parseSpectrum({ name: 'a.tsv', text: rows(25, '\t').join('\r\n') + '\r\n' });
+		expect(s.format).toBe('tsv');
+		expect(s.x.length).toBe(25);
+	});
+
+	it('reads whitespace-aligned columns', () => {
+		const text = rows(25, '   ')
+			.map((l) => '  ' + l)
+			.join('\n');
+		const s = parseSpectrum({ name: 'a.txt', text });
+		expect(s.format).toBe('whitespace');
+		expect(s.y[0]).toBe(100);
+	});
+
+	it('sorts a descending axis and keeps counts with their x', () => {
+		const text = rows(30).reverse().join('\n');
+		const s = parseSpectrum({ name: 'd.csv', text });
+		expect(s.reversed).toBe(true);
+		for (let i = 1; i < s.x.length; i++) expect(s.x[i]).toBeGreaterThan(s.x[i - 1]);
+		expect(s.x[0]).toBe(400);
+		expect(s.y[0]).toBe(100);
+		expect(s.rows[0]).toBe(30);
+	});
+
+	it('reads JCAMP-DX XYDATA', () => {
+		const ys = Array.from({ length: 40 }, (_, i) => 50 + i);
+		const lines = [];
+		for (let i = 0; i < 40; i += 10) lines.push(`${100 + i} ${ys.slice(i, i + 10).join(' ')}`);
+		const text = [
+			'##TITLE=test',
+			'##JCAMP-DX=4.24',
+			'##DATA TYPE=RAMAN SPECTRUM',
+			'##XUNITS=1/CM',
+			'##YUNITS=COUNTS',
+			'##FIRSTX=100',
+			'##LASTX=139',
+			'##NPOINTS=40',
+			'##XFACTOR=1',
+			'##YFACTOR=1',
+			'##XYDATA=(X++(Y..Y))',
+			...lines,
+			'##END='
+		].join('\n');
+		const s = parseSpectrum({ name: 'a.jdx', text });
+		expect(s.format).toBe('jcamp');
+		expect(s.x.length).toBe(40);
+		expect(s.x[39]).toBe(139);
+		expect(s.y[39]).toBe(89);
+		expect(s.xLabel).toBe('1/CM');
+	});
+
+	it('parses a 2,000-row file quickly', () => {
+		const text = rows(2000).join('\n');
+		const t0 = performance.now();
+		for (let i = 0; i < 20; i++) parseSpectrum({ name: 'big.csv', text });
+		// Generous bound so a loaded CI machine passes; typical is well under 2 ms per file.
+		expect((performance.now() - t0) / 20).toBeLessThan(25);
+	});
+});
+
+// One test per refusal of issue 3 item 1; each checks the stable code and that the message names
+// the file (and the row where there is one).
+describe('parseSpectrum: refusals', () => {
+	it('empty file', () => {
+		const e = refusal('empty.csv', '  \n\n');
+		expect(e.code).toBe('empty-file');
+		expect(e.message).toContain('empty.csv');
+	});
+
+	it('only comments counts as empty', () => {
+		const e = refusal('c.csv', '# nothing here\n# still nothing\n');
+		expect(e.code).toBe('empty-file');
+		expect(e.message).toContain('c.csv');
+	});
+
+	it('header only', () => {
+		const e = refusal('h.csv', 'shift,counts\n');
+		expect(e.code).toBe('header-only');
+		expect(e.message).toContain('h.csv');
+	});
+
+	it('not numeric', () => {
+		const r = rows(30);
+		r[11] = '405.5,abc';
+		const e = refusal('n.csv', r.join('\n'));
+		expect(e.code).toBe('not-numeric');
+		expect(e.message).toContain('n.csv, row 12');
+		expect(e.message).toContain('abc');
+		expect(e.details.row).toBe(12);
+	});
+
+	it('NaN', () => {
+		const r = rows(30);
+		r[4] = '402,NaN';
+		const e = refusal('nan.csv', r.join('\n'));
+		expect(e.code).toBe('not-finite');
+		expect(e.message).toContain('nan.csv, row 5');
+	});
+
+	it('infinity', () => {
+		const r = rows(30);
+		r[6] = 'Infinity,10';
+		const e = refusal('inf.csv', r.join('\n'));
+		expect(e.code).toBe('not-finite');
+		expect(e.message).toContain('inf.csv, row 7');
+	});
+
+	it('too few points', () => {
+		const e = refusal('few.csv', rows(MIN_POINTS - 1).join('\n'));
+		expect(e.code).toBe('too-few-points');
+		expect(e.message).toContain('few.csv');
+		expect(e.message).toContain(String(MIN_POINTS - 1));
+	});
+
+	it('duplicate x', () => {
+		const r = rows(30);
+		r[9] = r[8];
+		const e = refusal('dup.csv', r.join('\n'));
+		expect(e.code).toBe('duplicate-x');
+		expect(e.message).toContain('dup.csv, row 10');
+	});
+
+	it('non-monotonic x', () => {
+		const r = rows(30);
+		r[15] = '401,5';
+		const e = refusal('mono.csv', r.join('\n'));
+		expect(e.code).toBe('non-monotonic-x');
+		expect(e.message).toContain('mono.csv, row 16');
+	});
+
+	it('inconsistent columns', () => {
+		const r = rows(30);
+		r[20] = '410,3,7';
+		const e = refusal('cols.csv', r.join('\n'));
+		expect(e.code).toBe('inconsistent-columns');
+		expect(e.message).toContain('cols.csv, row 21');
+	});
+
+	it('a single column', () => {
+		const e = refusal('one.csv', Array.from({ length: 30 }, (_, i) => String(i)).join('\n'));
+		expect(e.code).toBe('too-few-columns');
+		expect(e.message).toContain('one.csv, row 1');
+	});
+
+	it('more than 200,000 rows', () => {
+		const e = refusal('huge.csv', rows(MAX_ROWS + 2).join('\n'));
+		expect(e.code).toBe('too-many-rows');
+		expect(e.message).toContain('huge.csv');
+	});
+
+	it('JCAMP-DX without data', () => {
+		const e = refusal('nodata.jdx', '##TITLE=x\n##JCAMP-DX=4.24\n##END=\n');
+		expect(e.code).toBe('empty-file');
+		expect(e.message).toContain('nodata.jdx');
+	});
+});

@@ -1,0 +1,315 @@
+/**
+ * Step 1 of the engine: turn the text of a spectrum file into two numeric columns (x, counts).
+ *
+ * Delimited text (CSV, TSV, semicolon- or whitespace-separated) goes through papaparse;
+ * JCAMP-DX (IUPAC) goes through jcampconverter. Nothing here knows about Raman shift or sides:
+ * the x column is returned in the file's own unit and converted in `axis.ts`.
+ *
+ * Every refusal is an `EngineError` whose code is stable and whose message names the file, the
+ * row (1-based line of the file, or the point number for JCAMP-DX) and the problem, so that a
+ * person at an acquisition PC can fix the file without reading our code.
+ */
+import Papa from 'papaparse';
+import { convert as convertJcamp } from 'jcampconverter';
+import { EngineError } from './types';
+
+/** Fewer points than this cannot constrain a band and its baseline (design.md: "~20"). */
+export const MIN_POINTS = 20;
+/** Larger files are not spectra from one detector readout; refuse before spending memory. */
+export const MAX_ROWS = 200_000;
+
+export type FileFormat = 'csv' | 'tsv' | 'semicolon' | 'whitespace' | 'jcamp';
+
+/** A spectrum file's text with the name used in messages. */
+export interface SpectrumFile {
+	name: string;
+	text: string;
+}
+
+export interface ParsedSpectrum {
+	file: string;
+	format: FileFormat;
+	/** x in the file's own unit, strictly ascending (a descending file is reversed). */
+	x: Float64Array;
+	/** The counts column, same order as x. */
+	y: Float64Array;
+	/** Source row of each point (1-based file line; JCAMP-DX: 1-based point number). */
+	rows: Int32Array;
+	/** Column header or JCAMP-DX ##XUNITS, when the file has one; used as an axis hint. */
+	xLabel?: string;
+	yLabel?: string;
+	/** True when the file's x axis was descending and was reversed. */
+	reversed: boolean;
+}
+
+export interface ParseOptions {
+	/** 0-based column of x (default 0). */
+	xColumn?: number;
+	/** 0-based column of counts (default 1). */
+	yColumn?: number;
+}
+
+/** Comment markers seen in spectrometer exports. */
+const COMMENT = /^\s*(#|%|\/\/|!)/;
+const NON_FINITE_WORD = /^[+-]?(nan|inf|infinity|-?1\.#in[df])$/i;
+
+function fail(
+	code: string,
+	file: string,
+	row: number | undefined,
+	problem: string,
+	unit: 'row' | 'point' = 'row'
+): never {
+	const where = row === undefined ? file : `${file}, ${unit} ${row}`;
+	throw new EngineError(code, `${where}: ${problem}`, { file, row });
+}
+
+/** Parse one spectrum file; JCAMP-DX is recognised by its leading `##` labelled records. */
+export function parseSpectrum(file: SpectrumFile, options: ParseOptions = {}): ParsedSpectrum {
+	const text = file.text.charCodeAt(0) === 0xfeff ? file.text.slice(1) : file.text;
+	if (text.trim() === '') fail('empty-file', file.name, undefined, 'the file is empty.');
+	if (/^\s*##/.test(text)) return parseJcamp(file.name, text);
+	return parseDelimited(file.name, text, options);
+}
+
+function detectDelimiter(lines: string[]): { delimiter: string; format: FileFormat } {
+	// Tab and semicolon beat comma so that a decimal comma with ';' separators is not split twice.
+	const sample = lines.filter((l) => l.trim() !== '').slice(0, 10);
+	if (sample.some((l) => l.includes('\t'))) return { delimiter: '\t', format: 'tsv' };
+	if (sample.some((l) => l.includes(';'))) return { delimiter: ';', format: 'semicolon' };
+	if (sample.some((l) => l.includes(','))) return { delimiter: ',', format: 'csv' };
+	return { delimiter: ' ', format: 'whitespace' };
+}
+
+/** The number in a field, or a reason it is not one. */
+function numberOf(field: string): number | 'not-numeric' | 'not-finite' {
+	const s = field.trim();
+	if (s === '') return 'not-numeric';
+	const v = +s;
+	if (Number.isFinite(v)) return v;
+	if (Number.isNaN(v) && !NON_FINITE_WORD.test(s)) return 'not-numeric';
+	return 'not-finite';
+}
+
+function parseDelimited(name: string, text: string, options: ParseOptions): ParsedSpectrum {
+	const xCol = options.xColumn ?? 0;
+	const yCol = options.yColumn ?? 1;
+	const lines = text.split(/\r\n|\n|\r/);
+	// Blank out comment lines instead of dropping them so papaparse row i stays file line i + 1,
+	// and so a stray quote inside a comment cannot open a quoted field.
+	let dataLines = 0;
+	for (let i = 0; i < lines.length; i++) {
+		if (COMMENT.test(lines[i])) lines[i] = '';
+		else if (lines[i].trim() !== '') dataLines++;
+	}
+	if (dataLines === 0) fail('empty-file', name, undefined, 'the file holds only comments.');
+	// One header line is allowed on top of MAX_ROWS data rows.
+	if (dataLines > MAX_ROWS + 1) {
+		fail(
+			'too-many-rows',
+			name,
+			undefined,
+			`${dataLines} rows is more than the ${MAX_ROWS} a spectrum may have.`
+		);
+	}
+	const { delimiter, format } = detectDelimiter(lines);
+	const parsed = Papa.parse<string[]>(lines.join('\n'), {
+		delimiter,
+		newline: '\n',
+		header: false,
+		skipEmptyLines: false,
+		dynamicTyping: false
+	});
+	const rowsIn = parsed.data;
+	const xs = new Float64Array(dataLines);
+	const ys = new Float64Array(dataLines);
+	const rowNo = new Int32Array(dataLines);
+	let n = 0;
+	let columns = -1;
+	let header: string[] | undefined;
+	for (let i = 0; i < rowsIn.length; i++) {
+		let fields = rowsIn[i];
+		if (fields.length === 1 && fields[0].trim() === '') continue;
+		// Whitespace-separated exports align columns with runs of spaces and may lead with one.
+		if (format === 'whitespace') fields = fields.filter((f) => f !== '');
+		// A trailing delimiter ("1,2,") is an export habit, not an extra column.
+		if (fields.length > 1 && fields[fields.length - 1].trim() === '') fields = fields.slice(0, -1);
+		const line = i + 1;
+		if (columns === -1) {
+			// The first non-comment row is a header when one of its fields is not a number.
+			const isHeader = fields.some((f) => numberOf(f) === 'not-numeric');
+			columns = fields.length;
+			if (columns < 2 || columns <= Math.max(xCol, yCol)) {
+				fail(
+					'too-few-columns',
+					name,
+					line,
+					`found ${columns} column${columns === 1 ? '' : 's'}; a spectrum needs x and counts.`
+				);
+			}
+			if (isHeader) {
+				header = fields.map((f) => f.trim());
+				continue;
+			}
+		} else if (fields.length !== columns) {
+			fail(
+				'inconsistent-columns',
+				name,
+				line,
+				`has ${fields.length} columns where the file has ${columns}.`
+			);
+		}
+		const x = numberOf(fields[xCol]);
+		const y = numberOf(fields[yCol]);
+		for (const [v, col] of [
+			[x, xCol],
+			[y, yCol]
+		] as const) {
+			if (v === 'not-numeric') {
+				fail(
+					'not-numeric',
+					name,
+					line,
+					`column ${col + 1} holds "${fields[col].trim().slice(0, 40)}", which is not a number.`
+				);
+			}
+			if (v === 'not-finite') {
+				fail(
+					'not-finite',
+					name,
+					line,
+					`column ${col + 1} holds "${fields[col].trim()}"; values must be finite numbers.`
+				);
+			}
+		}
+		xs[n] = x as number;
+		ys[n] = y as number;
+		rowNo[n] = line;
+		n++;
+	}
+	if (n === 0) fail('header-only', name, undefined, 'the file has a header but no data rows.');
+	return finish(
+		name,
+		format,
+		xs.subarray(0, n),
+		ys.subarray(0, n),
+		rowNo.subarray(0, n),
+		'row',
+		header?.[xCol],
+		header?.[yCol]
+	);
+}
+
+function parseJcamp(name: string, text: string): ParsedSpectrum {
+	let result;
+	try {
+		result = convertJcamp(text);
+	} catch (e) {
+		fail('jcamp-invalid', name, undefined, `not readable as JCAMP-DX (${(e as Error).message}).`);
+	}
+	const entry = result.flatten.find((f) => f.spectra && f.spectra.length > 0);
+	const spectrum = entry?.spectra[0];
+	const data = spectrum?.data as { x?: ArrayLike<number>; y?: ArrayLike<number> } | undefined;
+	if (!spectrum || !data?.x || !data?.y || data.x.length === 0) {
+		fail('empty-file', name, undefined, 'the JCAMP-DX file holds no XYDATA or XYPOINTS block.');
+	}
+	const x = data.x;
+	const y = data.y;
+	if (x.length !== y.length) {
+		fail(
+			'inconsistent-columns',
+			name,
+			undefined,
+			`the JCAMP-DX block has ${x.length} x values and ${y.length} y values.`
+		);
+	}
+	if (x.length > MAX_ROWS) {
+		fail(
+			'too-many-rows',
+			name,
+			undefined,
+			`${x.length} points is more than the ${MAX_ROWS} a spectrum may have.`
+		);
+	}
+	const xs = new Float64Array(x.length);
+	const ys = new Float64Array(x.length);
+	const rows = new Int32Array(x.length);
+	for (let i = 0; i < x.length; i++) {
+		const xv = Number(x[i]);
+		const yv = Number(y[i]);
+		if (!Number.isFinite(xv) || !Number.isFinite(yv)) {
+			fail(
+				'not-finite',
+				name,
+				i + 1,
+				`the JCAMP-DX value is not a finite number (x=${x[i]}, y=${y[i]}).`,
+				'point'
+			);
+		}
+		xs[i] = xv;
+		ys[i] = yv;
+		rows[i] = i + 1;
+	}
+	const sp = spectrum as { xUnits?: string; yUnits?: string };
+	return finish(name, 'jcamp', xs, ys, rows, 'point', sp.xUnits, sp.yUnits);
+}
+
+/** Shared checks once the numbers are in: length, duplicates, monotonic x; sorts a descending axis. */
+function finish(
+	name: string,
+	format: FileFormat,
+	x: Float64Array,
+	y: Float64Array,
+	rows: Int32Array,
+	unit: 'row' | 'point',
+	xLabel: string | undefined,
+	yLabel: string | undefined
+): ParsedSpectrum {
+	const n = x.length;
+	if (n < MIN_POINTS) {
+		fail(
+			'too-few-points',
+			name,
+			undefined,
+			`${n} data point${n === 1 ? '' : 's'}; at least ${MIN_POINTS} are needed to fit a band.`
+		);
+	}
+	// The first step fixes the direction; each later step must keep it.
+	const descending = x[1] < x[0];
+	for (let i = 1; i < n; i++) {
+		const d = x[i] - x[i - 1];
+		if (d === 0) {
+			fail(
+				'duplicate-x',
+				name,
+				rows[i],
+				`x = ${x[i]} repeats the value of ${unit} ${rows[i - 1]}.`,
+				unit
+			);
+		}
+		if (d < 0 !== descending) {
+			fail(
+				'non-monotonic-x',
+				name,
+				rows[i],
+				`x = ${x[i]} after ${x[i - 1]} breaks the ${descending ? 'descending' : 'ascending'} order of the axis.`,
+				unit
+			);
+		}
+	}
+	if (descending) {
+		x.reverse();
+		y.reverse();
+		rows.reverse();
+	}
+	return {
+		file: name,
+		format,
+		x: Float64Array.from(x),
+		y: Float64Array.from(y),
+		rows: Int32Array.from(rows),
+		xLabel,
+		yLabel,
+		reversed: descending
+	};
+}
