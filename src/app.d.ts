@@ -1,11 +1,15 @@
 // See https://svelte.dev/docs/kit/types#app.d.ts
 declare global {
 	namespace App {
-		// interface Error {}
-		// interface Locals {}
-		// interface PageData {}
-		// interface PageState {}
-		// interface Platform {}
+		interface Locals {
+			user: {
+				id: string;
+				email: string;
+				name: string | null;
+				notifyOnProblems: boolean;
+				hasPassword: boolean;
+			} | null;
+		}
 	}
 }
 
