@@ -4,7 +4,7 @@ import Credentials from '@auth/sveltekit/providers/credentials';
 import type { Provider } from '@auth/sveltekit/providers';
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
-import { db } from './db';
+import { db, getDb } from './db';
 import { accounts, sessions, users, verificationTokens } from './db/schema';
 import { env } from './env';
 import { verifyPassword } from './passwords';
@@ -53,7 +53,7 @@ export const ssoConfigured = () => {
 };
 
 export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async () => ({
-	adapter: DrizzleAdapter(db, {
+	adapter: DrizzleAdapter(getDb(), {
 		usersTable: users,
 		accountsTable: accounts,
 		sessionsTable: sessions,

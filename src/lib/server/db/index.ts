@@ -15,12 +15,16 @@ function connect() {
 	return instance;
 }
 
-/** The one database client of this process. */
+/** The client itself, for libraries that check its class (Auth.js's adapter). */
+export const getDb = (): Database => connect().db;
+
+/** The one database client of this process, connected on first use. */
 export const db: Database = new Proxy({} as Database, {
 	get: (_t, prop) => {
 		const target = connect().db;
 		const value = Reflect.get(target, prop);
-		return typeof value === 'function' ? value.bind(target) : value;
+		// `constructor` stays unbound: drizzle (and Auth.js's adapter) identify the client by it.
+		return typeof value === 'function' && prop !== 'constructor' ? value.bind(target) : value;
 	}
 });
 

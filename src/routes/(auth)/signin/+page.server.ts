@@ -1,4 +1,5 @@
-import { redirect } from '@sveltejs/kit';
+import { fail, isRedirect, redirect } from '@sveltejs/kit';
+import { AuthError } from '@auth/sveltekit';
 import { signIn } from '$lib/server/auth';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -7,24 +8,36 @@ function safeTarget(value: string | null): string {
 	return value && value.startsWith('/') && !value.startsWith('//') ? value : '/projects';
 }
 
+// One message for every credentials failure, so the page does not reveal which addresses exist.
+const WRONG = 'That e-mail and password do not match an account.';
+const FAILED = 'Sign-in did not complete. Try again, or use the other way of signing in.';
+
 export const load: PageServerLoad = ({ locals, url }) => {
-	const redirectTo = safeTarget(url.searchParams.get('redirectTo') ?? url.searchParams.get('callbackUrl'));
+	const redirectTo = safeTarget(
+		url.searchParams.get('redirectTo') ?? url.searchParams.get('callbackUrl')
+	);
 	if (locals.user) redirect(303, redirectTo);
 	const code = url.searchParams.get('error');
-	// One message for every credentials failure, so the page does not reveal which addresses exist.
-	const error =
-		code === null
-			? null
-			: code === 'CredentialsSignin'
-				? 'That e-mail and password do not match an account.'
-				: 'Sign-in did not complete. Try again, or use the other way of signing in.';
 	return {
 		redirectTo,
-		error,
+		error: code === null ? null : code === 'CredentialsSignin' ? WRONG : FAILED,
 		signedOut: url.searchParams.has('signedOut'),
 		reset: url.searchParams.has('reset'),
 		joined: url.searchParams.get('joined')
 	};
 };
 
-export const actions: Actions = { default: signIn };
+export const actions: Actions = {
+	default: async (event) => {
+		try {
+			await signIn(event);
+		} catch (err) {
+			if (isRedirect(err)) throw err;
+			// Auth.js throws on a failed credentials check when called from the server.
+			if (err instanceof AuthError) {
+				return fail(400, { error: err.type === 'CredentialsSignin' ? WRONG : FAILED });
+			}
+			throw err;
+		}
+	}
+};
