@@ -47,6 +47,8 @@ export interface ParseOptions {
 	xColumn?: number;
 	/** 0-based column of counts (default 1). */
 	yColumn?: number;
+	/** Fewest points accepted (default MIN_POINTS); a response table may be shorter than a spectrum. */
+	minPoints?: number;
 }
 
 /** Comment markers seen in spectrometer exports. */
@@ -68,7 +70,7 @@ function fail(
 export function parseSpectrum(file: SpectrumFile, options: ParseOptions = {}): ParsedSpectrum {
 	const text = file.text.charCodeAt(0) === 0xfeff ? file.text.slice(1) : file.text;
 	if (text.trim() === '') fail('empty-file', file.name, undefined, 'the file is empty.');
-	if (/^\s*##/.test(text)) return parseJcamp(file.name, text);
+	if (/^\s*##/.test(text)) return parseJcamp(file.name, text, options.minPoints ?? MIN_POINTS);
 	return parseDelimited(file.name, text, options);
 }
 
@@ -196,11 +198,12 @@ function parseDelimited(name: string, text: string, options: ParseOptions): Pars
 		rowNo.subarray(0, n),
 		'row',
 		header?.[xCol],
-		header?.[yCol]
+		header?.[yCol],
+		options.minPoints ?? MIN_POINTS
 	);
 }
 
-function parseJcamp(name: string, text: string): ParsedSpectrum {
+function parseJcamp(name: string, text: string, minPoints: number): ParsedSpectrum {
 	let result;
 	try {
 		result = convertJcamp(text);
@@ -251,7 +254,7 @@ function parseJcamp(name: string, text: string): ParsedSpectrum {
 		rows[i] = i + 1;
 	}
 	const sp = spectrum as { xUnits?: string; yUnits?: string };
-	return finish(name, 'jcamp', xs, ys, rows, 'point', sp.xUnits, sp.yUnits);
+	return finish(name, 'jcamp', xs, ys, rows, 'point', sp.xUnits, sp.yUnits, minPoints);
 }
 
 /** Shared checks once the numbers are in: length, duplicates, monotonic x; sorts a descending axis. */
@@ -263,15 +266,16 @@ function finish(
 	rows: Int32Array,
 	unit: 'row' | 'point',
 	xLabel: string | undefined,
-	yLabel: string | undefined
+	yLabel: string | undefined,
+	minPoints: number
 ): ParsedSpectrum {
 	const n = x.length;
-	if (n < MIN_POINTS) {
+	if (n < minPoints) {
 		fail(
 			'too-few-points',
 			name,
 			undefined,
-			`${n} data point${n === 1 ? '' : 's'}; at least ${MIN_POINTS} are needed to fit a band.`
+			`${n} data point${n === 1 ? '' : 's'}; at least ${minPoints} are needed.`
 		);
 	}
 	// The first step fixes the direction; each later step must keep it.
