@@ -52,7 +52,9 @@ export async function requireToken(
 ): Promise<{ token: TokenRow; project: Project }> {
 	const header = event.request.headers.get('authorization');
 	if (!header) {
-		throw withChallenge(problem(401, 'Send the acquisition token as "Authorization: Bearer <token>".'));
+		throw withChallenge(
+			problem(401, 'Send the acquisition token as "Authorization: Bearer <token>".')
+		);
 	}
 	const match = BEARER.exec(header);
 	if (!match) {
@@ -65,12 +67,18 @@ export async function requireToken(
 		.from(acquisitionTokens)
 		.innerJoin(projects, eq(projects.id, acquisitionTokens.projectId))
 		.where(and(eq(acquisitionTokens.secretHash, hashSecret(match[1]))));
-	if (!row) throw withChallenge(problem(401, 'This token is not known; check that it was copied whole.'));
+	if (!row)
+		throw withChallenge(problem(401, 'This token is not known; check that it was copied whole.'));
 	if (row.token.revokedAt) {
-		throw withChallenge(problem(401, 'This token has been revoked; ask a project owner for a new one.'));
+		throw withChallenge(
+			problem(401, 'This token has been revoked; ask a project owner for a new one.')
+		);
 	}
 	if (scope && !row.token.scopes.includes(scope)) {
-		throw problem(403, `This token lacks the "${scope}" scope; ask a project owner for one that has it.`);
+		throw problem(
+			403,
+			`This token lacks the "${scope}" scope; ask a project owner for one that has it.`
+		);
 	}
 	// Last-used time is for owners auditing tokens; a lost update under concurrency is harmless.
 	await db

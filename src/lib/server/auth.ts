@@ -19,7 +19,10 @@ const credentialsInput = z.object({
 function providers(): Provider[] {
 	const list: Provider[] = [
 		Credentials({
-			credentials: { email: { label: 'E-mail' }, password: { label: 'Password', type: 'password' } },
+			credentials: {
+				email: { label: 'E-mail' },
+				password: { label: 'Password', type: 'password' }
+			},
 			async authorize(raw) {
 				const input = credentialsInput.safeParse(raw);
 				if (!input.success) return null;
@@ -52,27 +55,34 @@ export const ssoConfigured = () => {
 	return Boolean(e.OIDC_ISSUER && e.OIDC_CLIENT_ID && e.OIDC_CLIENT_SECRET);
 };
 
-export const { handle: authHandle, signIn, signOut } = SvelteKitAuth(async () => ({
-	adapter: DrizzleAdapter(getDb(), {
-		usersTable: users,
-		accountsTable: accounts,
-		sessionsTable: sessions,
-		verificationTokensTable: verificationTokens
-	}),
-	providers: providers(),
-	secret: env().AUTH_SECRET,
-	trustHost: true,
-	// Credentials sign-in requires JWT sessions; the user row is re-read on every request.
-	session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
-	pages: { signIn: '/signin', error: '/signin' },
-	callbacks: {
-		jwt({ token, user }) {
-			if (user?.id) token.sub = user.id;
-			return token;
-		},
-		session({ session, token }) {
-			if (token.sub) session.user.id = token.sub;
-			return session;
-		}
-	}
-}) satisfies SvelteKitAuthConfig);
+export const {
+	handle: authHandle,
+	signIn,
+	signOut
+} = SvelteKitAuth(
+	async () =>
+		({
+			adapter: DrizzleAdapter(getDb(), {
+				usersTable: users,
+				accountsTable: accounts,
+				sessionsTable: sessions,
+				verificationTokensTable: verificationTokens
+			}),
+			providers: providers(),
+			secret: env().AUTH_SECRET,
+			trustHost: true,
+			// Credentials sign-in requires JWT sessions; the user row is re-read on every request.
+			session: { strategy: 'jwt', maxAge: 12 * 60 * 60 },
+			pages: { signIn: '/signin', error: '/signin' },
+			callbacks: {
+				jwt({ token, user }) {
+					if (user?.id) token.sub = user.id;
+					return token;
+				},
+				session({ session, token }) {
+					if (token.sub) session.user.id = token.sub;
+					return session;
+				}
+			}
+		}) satisfies SvelteKitAuthConfig
+);

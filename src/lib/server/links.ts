@@ -16,7 +16,13 @@ export type EmailLink = typeof emailLinks.$inferSelect;
 
 export async function createLink(
 	tx: Pick<Database, 'insert'>,
-	input: { purpose: LinkPurpose; email: string; projectId?: number; role?: Role; createdBy?: string }
+	input: {
+		purpose: LinkPurpose;
+		email: string;
+		projectId?: number;
+		role?: Role;
+		createdBy?: string;
+	}
 ): Promise<{ secret: string; link: EmailLink }> {
 	const { secret, hash } = newSecret(input.purpose === 'invite' ? 'inv' : 'rst');
 	const [link] = await tx
@@ -45,8 +51,10 @@ export async function peekLink(secret: string, purpose: LinkPurpose): Promise<Li
 }
 
 function judge(link: EmailLink | undefined): LinkState {
-	if (!link) return { ok: false, reason: 'This link is not valid. Check that it was copied whole.' };
-	if (link.usedAt) return { ok: false, reason: 'This link has already been used. Each link works once.' };
+	if (!link)
+		return { ok: false, reason: 'This link is not valid. Check that it was copied whole.' };
+	if (link.usedAt)
+		return { ok: false, reason: 'This link has already been used. Each link works once.' };
 	if (link.expiresAt.getTime() <= Date.now()) {
 		return { ok: false, reason: 'This link has expired. Ask for a new one.' };
 	}

@@ -38,7 +38,14 @@ export function problem(status: number, detail: string, extra: Record<string, un
 }
 
 export function problemResponse(p: Problem, instance?: string): Response {
-	const body = { type: 'about:blank', title: p.title, status: p.status, detail: p.detail, instance, ...p.extra };
+	const body = {
+		type: 'about:blank',
+		title: p.title,
+		status: p.status,
+		detail: p.detail,
+		instance,
+		...p.extra
+	};
 	return new Response(JSON.stringify(body), {
 		status: p.status,
 		headers: { 'content-type': 'application/problem+json', ...p.headers }

@@ -56,7 +56,11 @@ export async function createToken(
 }
 
 /** Revoke a token of this project; returns false when there was nothing to revoke. */
-export async function revokeToken(projectId: number, tokenId: number, by: string): Promise<boolean> {
+export async function revokeToken(
+	projectId: number,
+	tokenId: number,
+	by: string
+): Promise<boolean> {
 	return db.transaction(async (tx) => {
 		const [row] = await tx
 			.update(acquisitionTokens)

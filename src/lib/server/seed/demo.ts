@@ -21,10 +21,30 @@ export interface DemoAccount {
 }
 
 export const DEMO_ACCOUNTS: DemoAccount[] = [
-	{ email: 'lena.fischer@halvorsen.example', password: 'fischer-owner-26', name: 'Lena Fischer', role: 'owner' },
-	{ email: 'tomas.berg@halvorsen.example', password: 'berg-reviewer-26', name: 'Tomás Berg', role: 'reviewer' },
-	{ email: 'priya.nair@halvorsen.example', password: 'nair-analyst-26', name: 'Priya Nair', role: 'analyst' },
-	{ email: 'sam.ortiz@halvorsen.example', password: 'ortiz-viewer-26', name: 'Sam Ortiz', role: 'viewer' }
+	{
+		email: 'lena.fischer@halvorsen.example',
+		password: 'fischer-owner-26',
+		name: 'Lena Fischer',
+		role: 'owner'
+	},
+	{
+		email: 'tomas.berg@halvorsen.example',
+		password: 'berg-reviewer-26',
+		name: 'Tomás Berg',
+		role: 'reviewer'
+	},
+	{
+		email: 'priya.nair@halvorsen.example',
+		password: 'nair-analyst-26',
+		name: 'Priya Nair',
+		role: 'analyst'
+	},
+	{
+		email: 'sam.ortiz@halvorsen.example',
+		password: 'ortiz-viewer-26',
+		name: 'Sam Ortiz',
+		role: 'viewer'
+	}
 ];
 
 const PROJECTS = [
@@ -44,9 +64,24 @@ const PROJECTS = [
 // People who sign in through the institute's single sign-on: their rows exist so the seeded
 // memberships apply on their first sign-in (the address links the SSO account to the row).
 const SSO_MEMBERS: { email: string; name: string; project: string; role: Role }[] = [
-	{ email: 'mira.okafor@halvorsen.example', name: 'Mira Okafor', project: DEMO_PROJECT_SLUG, role: 'reviewer' },
-	{ email: 'aiko.tanabe@halvorsen.example', name: 'Aiko Tanabe', project: DEMO_PROJECT_SLUG, role: 'analyst' },
-	{ email: 'jonas.lindqvist@halvorsen.example', name: 'Jonas Lindqvist', project: 'catalyst-bed-batches', role: 'owner' }
+	{
+		email: 'mira.okafor@halvorsen.example',
+		name: 'Mira Okafor',
+		project: DEMO_PROJECT_SLUG,
+		role: 'reviewer'
+	},
+	{
+		email: 'aiko.tanabe@halvorsen.example',
+		name: 'Aiko Tanabe',
+		project: DEMO_PROJECT_SLUG,
+		role: 'analyst'
+	},
+	{
+		email: 'jonas.lindqvist@halvorsen.example',
+		name: 'Jonas Lindqvist',
+		project: 'catalyst-bed-batches',
+		role: 'owner'
+	}
 ];
 
 export interface DemoCredentials {
@@ -57,7 +92,9 @@ export interface DemoCredentials {
 
 /** Seed once. Returns null when the scenario is already in place. */
 export async function seedDemo(): Promise<DemoCredentials | null> {
-	const existing = await db.query.projects.findFirst({ where: eq(projects.slug, DEMO_PROJECT_SLUG) });
+	const existing = await db.query.projects.findFirst({
+		where: eq(projects.slug, DEMO_PROJECT_SLUG)
+	});
 	if (existing) return null;
 
 	const hashes = await Promise.all(DEMO_ACCOUNTS.map((a) => hashPassword(a.password)));
@@ -74,11 +111,27 @@ export async function seedDemo(): Promise<DemoCredentials | null> {
 			.returning();
 		const idOf = (email: string) => people.find((p) => p.email === email)!.id;
 		await tx.insert(memberships).values([
-			...DEMO_ACCOUNTS.map((a) => ({ projectId: ids[DEMO_PROJECT_SLUG], userId: idOf(a.email), role: a.role })),
+			...DEMO_ACCOUNTS.map((a) => ({
+				projectId: ids[DEMO_PROJECT_SLUG],
+				userId: idOf(a.email),
+				role: a.role
+			})),
 			// The owner also runs the process lab's project, with the others reading it.
-			{ projectId: ids['catalyst-bed-batches'], userId: idOf(DEMO_ACCOUNTS[0].email), role: 'owner' as const },
-			{ projectId: ids['catalyst-bed-batches'], userId: idOf(DEMO_ACCOUNTS[2].email), role: 'analyst' as const },
-			...SSO_MEMBERS.map((m) => ({ projectId: ids[m.project], userId: idOf(m.email), role: m.role }))
+			{
+				projectId: ids['catalyst-bed-batches'],
+				userId: idOf(DEMO_ACCOUNTS[0].email),
+				role: 'owner' as const
+			},
+			{
+				projectId: ids['catalyst-bed-batches'],
+				userId: idOf(DEMO_ACCOUNTS[2].email),
+				role: 'analyst' as const
+			},
+			...SSO_MEMBERS.map((m) => ({
+				projectId: ids[m.project],
+				userId: idOf(m.email),
+				role: m.role
+			}))
 		]);
 		for (const p of made) {
 			await recordAudit(tx, {
@@ -104,7 +157,9 @@ export async function seedDemo(): Promise<DemoCredentials | null> {
 
 /** When the credentials file was lost, issue a fresh demo token so one can be printed again. */
 export async function reissueDemoToken(): Promise<string | null> {
-	const project = await db.query.projects.findFirst({ where: eq(projects.slug, DEMO_PROJECT_SLUG) });
+	const project = await db.query.projects.findFirst({
+		where: eq(projects.slug, DEMO_PROJECT_SLUG)
+	});
 	if (!project) return null;
 	const { secret } = await createToken(
 		project.id,

@@ -16,10 +16,15 @@ export const load: PageServerLoad = (event) => {
 const passwordSchema = z
 	.object({
 		current: z.string().min(1, 'Enter your current password.'),
-		password: z.string().min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
+		password: z
+			.string()
+			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
 		confirm: z.string()
 	})
-	.refine((v) => v.password === v.confirm, { path: ['confirm'], message: 'The two entries differ.' });
+	.refine((v) => v.password === v.confirm, {
+		path: ['confirm'],
+		message: 'The two entries differ.'
+	});
 
 export const actions: Actions = {
 	password: async (event) => {
@@ -49,7 +54,10 @@ export const actions: Actions = {
 		const user = requireUser(event);
 		const form = await parseForm(event.request, z.object({ notify: z.literal('on').optional() }));
 		if (!form.ok) return form.failure;
-		await db.update(users).set({ notifyOnProblems: Boolean(form.data.notify) }).where(eq(users.id, user.id));
+		await db
+			.update(users)
+			.set({ notifyOnProblems: Boolean(form.data.notify) })
+			.where(eq(users.id, user.id));
 		return { notificationsSaved: true };
 	}
 };

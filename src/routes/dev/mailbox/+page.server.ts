@@ -6,12 +6,26 @@ import type { PageServerLoad } from './$types';
 // Only present when the local SMTP catcher is configured: a developer reads outgoing mail here.
 const summary = z.object({
 	id: z.string(),
-	from: z.string().optional().default(''),
-	to: z.string().optional().default(''),
-	subject: z.string().optional().default(''),
+	from: z
+		.string()
+		.nullish()
+		.transform((v) => v ?? ''),
+	to: z
+		.union([z.string(), z.array(z.string())])
+		.nullish()
+		.transform((v) => (Array.isArray(v) ? v.join(', ') : (v ?? ''))),
+	subject: z
+		.string()
+		.nullish()
+		.transform((v) => v ?? ''),
 	date: z.string().optional().default('')
 });
-const full = summary.extend({ text: z.string().optional().default('') });
+const full = summary.extend({
+	text: z
+		.string()
+		.nullish()
+		.transform((v) => v ?? '')
+});
 
 export const load: PageServerLoad = async ({ url, fetch }) => {
 	const base = env().MAIL_CATCHER_URL;
@@ -19,7 +33,9 @@ export const load: PageServerLoad = async ({ url, fetch }) => {
 	try {
 		const list = z.array(summary).parse(await (await fetch(`${base}/messages`)).json());
 		const id = url.searchParams.get('id') ?? list[0]?.id;
-		const open = id ? full.parse(await (await fetch(`${base}/messages/${encodeURIComponent(id)}`)).json()) : null;
+		const open = id
+			? full.parse(await (await fetch(`${base}/messages/${encodeURIComponent(id)}`)).json())
+			: null;
 		return { messages: list, open };
 	} catch {
 		error(503, 'The local mail catcher does not answer; is `npm start` still running?');

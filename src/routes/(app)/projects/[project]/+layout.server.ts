@@ -3,5 +3,8 @@ import type { LayoutServerLoad } from './$types';
 
 export const load: LayoutServerLoad = async (event) => {
 	const { project, role } = await requireProject(event, 'read');
-	return { project: { slug: project.slug, name: project.name, description: project.description }, role };
+	return {
+		project: { slug: project.slug, name: project.name, description: project.description },
+		role
+	};
 };

@@ -12,7 +12,9 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ params }) => {
 	const state = await peekLink(params.token, 'invite');
 	if (!state.ok) error(410, state.reason);
-	const project = await db.query.projects.findFirst({ where: eq(projects.id, state.link.projectId!) });
+	const project = await db.query.projects.findFirst({
+		where: eq(projects.id, state.link.projectId!)
+	});
 	if (!project) error(410, 'The project of this invitation no longer exists.');
 	const account = await db.query.users.findFirst({ where: eq(users.email, state.link.email) });
 	return {
@@ -26,20 +28,29 @@ export const load: PageServerLoad = async ({ params }) => {
 const newAccount = z
 	.object({
 		name: z.string().trim().min(1, 'Enter your name.').max(120),
-		password: z.string().min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
+		password: z
+			.string()
+			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
 		confirm: z.string()
 	})
-	.refine((v) => v.password === v.confirm, { path: ['confirm'], message: 'The two entries differ.' });
+	.refine((v) => v.password === v.confirm, {
+		path: ['confirm'],
+		message: 'The two entries differ.'
+	});
 
 /** Use the link and add the membership; creates the account when `create` is given. */
-async function accept(token: string, create?: { name: string | null; passwordHash: string | null }) {
+async function accept(
+	token: string,
+	create?: { name: string | null; passwordHash: string | null }
+) {
 	return db.transaction(async (tx) => {
 		const state = await consumeLink(tx, token, 'invite');
 		if (!state.ok) return { ok: false as const, reason: state.reason };
 		const { link } = state;
 		let user = await tx.query.users.findFirst({ where: eq(users.email, link.email) });
 		if (!user) {
-			if (!create) return { ok: false as const, reason: 'Choose a password to create your account.' };
+			if (!create)
+				return { ok: false as const, reason: 'Choose a password to create your account.' };
 			[user] = await tx
 				.insert(users)
 				.values({ email: link.email, name: create.name, passwordHash: create.passwordHash })

@@ -11,10 +11,15 @@ import type { Actions, PageServerLoad } from './$types';
 
 const schema = z
 	.object({
-		password: z.string().min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
+		password: z
+			.string()
+			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
 		confirm: z.string()
 	})
-	.refine((v) => v.password === v.confirm, { path: ['confirm'], message: 'The two entries differ.' });
+	.refine((v) => v.password === v.confirm, {
+		path: ['confirm'],
+		message: 'The two entries differ.'
+	});
 
 export const load: PageServerLoad = async ({ params }) => {
 	const state = await peekLink(params.token, 'password-reset');

@@ -3,7 +3,13 @@ import { z } from 'zod';
 import { ROLES } from '$lib/roles';
 import { requireProject } from '$lib/server/access';
 import { email, parseForm } from '$lib/server/forms';
-import { changeRole, inviteMember, MemberError, membersOf, removeMember } from '$lib/server/projects';
+import {
+	changeRole,
+	inviteMember,
+	MemberError,
+	membersOf,
+	removeMember
+} from '$lib/server/projects';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -52,7 +58,9 @@ export const actions: Actions = {
 		const form = await parseForm(event.request, removeSchema);
 		if (!form.ok) return form.failure;
 		return (
-			(await guarded(() => removeMember(project.id, form.data.userId, user.id))) ?? { removed: true }
+			(await guarded(() => removeMember(project.id, form.data.userId, user.id))) ?? {
+				removed: true
+			}
 		);
 	}
 };

@@ -27,7 +27,10 @@ export const actions: Actions = {
 	},
 	revoke: async (event) => {
 		const { project, user } = await requireProject(event, 'manage');
-		const form = await parseForm(event.request, z.object({ id: z.coerce.number().int().positive() }));
+		const form = await parseForm(
+			event.request,
+			z.object({ id: z.coerce.number().int().positive() })
+		);
 		if (!form.ok) return form.failure;
 		if (!(await revokeToken(project.id, form.data.id, user.id))) {
 			return fail(404, { problem: 'That token does not exist or is already revoked.' });
