@@ -44,15 +44,16 @@ function gaussModel(x: number[]): LeastSquaresModel {
 				const g2 = Math.exp(-u2 * u2);
 				f[i] = b[0] * e1 + b[2] * g1 + b[5] * g2;
 				if (jac) {
-					const r = i * 8;
-					jac[r] = e1;
-					jac[r + 1] = -b[0] * xi * e1;
-					jac[r + 2] = g1;
-					jac[r + 3] = (b[2] * g1 * 2 * u1) / b[4];
-					jac[r + 4] = (b[2] * g1 * 2 * u1 * u1) / b[4];
-					jac[r + 5] = g2;
-					jac[r + 6] = (b[5] * g2 * 2 * u2) / b[7];
-					jac[r + 7] = (b[5] * g2 * 2 * u2 * u2) / b[7];
+					// column-major: jac[j·N + i] = ∂fᵢ/∂bⱼ
+					const n = x.length;
+					jac[i] = e1;
+					jac[n + i] = -b[0] * xi * e1;
+					jac[2 * n + i] = g1;
+					jac[3 * n + i] = (b[2] * g1 * 2 * u1) / b[4];
+					jac[4 * n + i] = (b[2] * g1 * 2 * u1 * u1) / b[4];
+					jac[5 * n + i] = g2;
+					jac[6 * n + i] = (b[5] * g2 * 2 * u2) / b[7];
+					jac[7 * n + i] = (b[5] * g2 * 2 * u2 * u2) / b[7];
 				}
 			}
 		}
@@ -108,12 +109,12 @@ describe('levenberg-marquardt against NIST StRD', () => {
 					const l = ((p[0] * 2) / Math.PI / p[2]) * q;
 					f[i] = l + p[3] + p[4] * (x[i] - 520);
 					if (jac) {
-						const r = i * 5;
-						jac[r] = l / p[0];
-						jac[r + 1] = (l * 8 * u * q) / p[2];
-						jac[r + 2] = (l / p[2]) * (8 * u * u * q - 1);
-						jac[r + 3] = 1;
-						jac[r + 4] = x[i] - 520;
+						const n = x.length;
+						jac[i] = l / p[0];
+						jac[n + i] = (l * 8 * u * q) / p[2];
+						jac[2 * n + i] = (l / p[2]) * (8 * u * u * q - 1);
+						jac[3 * n + i] = 1;
+						jac[4 * n + i] = x[i] - 520;
 					}
 				}
 			}
@@ -147,7 +148,7 @@ describe('levenberg-marquardt against NIST StRD', () => {
 		const jac = new Float64Array(250 * 8);
 		gaussModel(d.x).evaluate(ours.params, new Float64Array(250), jac);
 		const J = new Matrix(250, 8);
-		for (let i = 0; i < 250; i++) for (let j = 0; j < 8; j++) J.set(i, j, jac[i * 8 + j]);
+		for (let i = 0; i < 250; i++) for (let j = 0; j < 8; j++) J.set(i, j, jac[j * 250 + i]);
 		const cov = inverse(J.transpose().mmul(J)).mul(ours.chi2 / (250 - 8));
 		for (let j = 0; j < 8; j++) {
 			expect(Math.abs(cov.get(j, j) - ours.covariance[j * 8 + j]) / cov.get(j, j)).toBeLessThan(

@@ -16,8 +16,8 @@ export interface LeastSquaresModel {
 	readonly nParams: number;
 	readonly nPoints: number;
 	/**
-	 * Model values at `p` into `f`. When `jac` is given, also ∂fᵢ/∂pⱼ into jac[i·nParams + j].
-	 * Must not allocate per point.
+	 * Model values at `p` into `f`. When `jac` is given, also ∂fᵢ/∂pⱼ into jac[j·nPoints + i]
+	 * (column-major: one column per parameter). Must not allocate per point.
 	 */
 	evaluate(p: Float64Array, f: Float64Array, jac: Float64Array | null): void;
 }
@@ -28,6 +28,11 @@ export interface LMOptions {
 	lambda?: number;
 	/** Stop when χ² falls by less than this fraction in an accepted step. */
 	ftol?: number;
+	/**
+	 * Stop when χ² falls by less than this absolute amount. With true (Poisson) weights a fall of
+	 * 1e-6 moves the parameters by ~1e-3 of their standard errors, which no one can see.
+	 */
+	chi2Abs?: number;
 	/** Stop when every accepted step changes its parameter by less than this fraction. */
 	xtol?: number;
 	lower?: ArrayLike<number>;
@@ -104,6 +109,50 @@ export function spdInverse(m: Float64Array, n: number): Float64Array | null {
 	return inv;
 }
 
+/** χ² = Σ wᵢ (yᵢ − fᵢ)². */
+function weightedSsr(y: Float64Array, f: Float64Array, w: Float64Array, n: number): number {
+	let s = 0;
+	for (let i = 0; i < n; i++) {
+		const r = y[i] - f[i];
+		s += w[i] * r * r;
+	}
+	return s;
+}
+
+/**
+ * JᵀWJ and JᵀW(y − f) as dot products of Jacobian COLUMNS: each sum keeps its accumulator in a
+ * register, several times faster in V8 than updating the matrix point by point.
+ */
+function accumulateNormal(
+	jac: Float64Array,
+	f: Float64Array,
+	y: Float64Array,
+	w: Float64Array,
+	n: number,
+	np: number,
+	jtj: Float64Array,
+	g: Float64Array,
+	wcol: Float64Array
+): void {
+	for (let j = 0; j < np; j++) {
+		const cj = j * n;
+		let gj = 0;
+		for (let i = 0; i < n; i++) {
+			const v = w[i] * jac[cj + i];
+			wcol[i] = v;
+			gj += v * (y[i] - f[i]);
+		}
+		g[j] = gj;
+		for (let k = j; k < np; k++) {
+			const ck = k * n;
+			let s = 0;
+			for (let i = 0; i < n; i++) s += wcol[i] * jac[ck + i];
+			jtj[j * np + k] = s;
+			jtj[k * np + j] = s;
+		}
+	}
+}
+
 export function levenbergMarquardt(
 	model: LeastSquaresModel,
 	y: ArrayLike<number>,
@@ -116,15 +165,20 @@ export function levenbergMarquardt(
 	const maxIt = opts.maxIterations ?? 200;
 	const ftol = opts.ftol ?? 1e-10;
 	const xtol = opts.xtol ?? 1e-10;
+	const chi2Abs = opts.chi2Abs ?? 0;
 	const lower = opts.lower;
 	const upper = opts.upper;
 	const free = opts.free;
 
+	// Typed copies keep the hot loops monomorphic.
+	const yv = y instanceof Float64Array ? y : Float64Array.from(y);
+	const wv = weights instanceof Float64Array ? weights : Float64Array.from(weights);
 	const p = Float64Array.from(start);
 	const pt = new Float64Array(np);
 	let f = new Float64Array(n);
 	let ft = new Float64Array(n);
 	const jac = new Float64Array(n * np);
+	const wcol = new Float64Array(n);
 	const jtj = new Float64Array(np * np);
 	const g = new Float64Array(np);
 	const a = new Float64Array(np * np);
@@ -134,32 +188,9 @@ export function levenbergMarquardt(
 		if (lower) for (let j = 0; j < np; j++) if (q[j] < lower[j]) q[j] = lower[j];
 		if (upper) for (let j = 0; j < np; j++) if (q[j] > upper[j]) q[j] = upper[j];
 	};
-	const chi2Of = (fv: Float64Array) => {
-		let s = 0;
-		for (let i = 0; i < n; i++) {
-			const r = y[i] - fv[i];
-			s += weights[i] * r * r;
-		}
-		return s;
-	};
-	/** JᵀWJ and JᵀW(y − f), upper triangle then mirrored; held parameters get identity rows. */
+	const chi2Of = (fv: Float64Array) => weightedSsr(yv, fv, wv, n);
 	const normalEquations = () => {
-		jtj.fill(0);
-		g.fill(0);
-		for (let i = 0; i < n; i++) {
-			const w = weights[i];
-			if (w === 0) continue;
-			const r = (y[i] - f[i]) * w;
-			const row = i * np;
-			for (let j = 0; j < np; j++) {
-				const jj = jac[row + j];
-				if (jj === 0) continue;
-				g[j] += jj * r;
-				const wj = w * jj;
-				for (let k = j; k < np; k++) jtj[j * np + k] += wj * jac[row + k];
-			}
-		}
-		for (let j = 0; j < np; j++) for (let k = 0; k < j; k++) jtj[j * np + k] = jtj[k * np + j];
+		accumulateNormal(jac, f, yv, wv, n, np, jtj, g, wcol);
 		if (free) {
 			for (let j = 0; j < np; j++) {
 				if (free[j]) continue;
@@ -206,7 +237,8 @@ export function levenbergMarquardt(
 					const s = Math.abs(pt[j] - p[j]) / (Math.abs(p[j]) + 1e-300);
 					if (s > stepRel) stepRel = s;
 				}
-				const fall = chi2 > 0 ? (chi2 - chi2t) / chi2 : 0;
+				const drop = chi2 - chi2t;
+				const fall = chi2 > 0 ? drop / chi2 : 0;
 				p.set(pt);
 				const tmp = f;
 				f = ft;
@@ -214,7 +246,7 @@ export function levenbergMarquardt(
 				chi2 = chi2t;
 				lambda = Math.max(lambda / 10, 1e-15);
 				model.evaluate(p, f, jac);
-				if (fall < ftol && iterations > 1) {
+				if ((fall < ftol || drop < chi2Abs) && iterations > 1) {
 					reason = 'ftol';
 					converged = true;
 					break outer;

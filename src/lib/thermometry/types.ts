@@ -16,7 +16,10 @@ export interface PreparedWindow {
 	source: string;
 	/** Raman shift in cm⁻¹, strictly ascending; anti-Stokes shifts are negative. */
 	shift: Float64Array;
-	/** Signal in counts per second, dark-subtracted, not baseline-subtracted. */
+	/**
+	 * Signal in counts per second PER PIXEL (not per cm⁻¹), dark-subtracted, not
+	 * baseline-subtracted. The estimator accounts for each pixel's width in cm⁻¹.
+	 */
 	rate: Float64Array;
 	/** Variance of `rate` in (counts/s)²: Poisson from the raw counts plus the dark's own. */
 	variance: Float64Array;
@@ -83,7 +86,10 @@ export interface FittedBand {
 	u_center_cm1: number;
 	fwhm_cm1: number;
 	u_fwhm_cm1: number;
-	/** Integrated area in counts/s · cm⁻¹ (rate integrated over shift), with its standard error. */
+	/**
+	 * Band area in counts/s: the band's photon rate summed over pixels (per-pixel rate integrated
+	 * with each pixel's width), so it does not depend on the pixel width of the window.
+	 */
 	area: number;
 	u_area: number;
 	height: number;
@@ -105,6 +111,20 @@ export interface ModeResult {
 	u_temperature_k: number | null;
 	/** Axis offset common to both windows (laser line off zero), cm⁻¹, from the joint fit. */
 	axis_offset_cm1?: number;
+	u_axis_offset_cm1?: number;
+	/** The joint-fit estimate, always computed (also when the separate method was asked for). */
+	joint?: {
+		temperature_k: number;
+		u_temperature_k: number;
+		/** u(T) from the fit's covariance alone (counting statistics). */
+		u_statistical_k: number;
+		ratio: number;
+		u_ratio: number;
+		converged: boolean;
+		iterations: number;
+	};
+	/** Peak-shift thermometry cross-check from the Stokes band position, when a model was given. */
+	peak_shift?: { temperature_k: number; u_temperature_k: number; model: string };
 	stokes: FittedBand;
 	anti_stokes: FittedBand;
 	/** The separate-band ratio estimate, reported as a cross-check. */
@@ -122,6 +142,8 @@ export interface MonteCarloResult {
 	interval_95_k: [number, number];
 	/** Histogram for plots: bin edges (length bins+1) and counts. */
 	histogram: { edges: number[]; counts: number[] };
+	/** Trials whose inputs gave no physical temperature (left out of the summary). */
+	invalid_trials?: number;
 }
 
 export interface Reading {
