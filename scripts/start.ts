@@ -61,7 +61,7 @@ try {
 		throw new SetupError(`PORT=${environment.PORT} is not a port number`);
 	}
 	await assertPortFree(appPort, 'the Phonotherm app');
-	services = await startServices({ dataDir, environment, log });
+	services = await startServices({ dataDir, environment, ports: localPorts(), log });
 	checkpoint();
 	await applyMigrations(services.env.DATABASE_URL);
 	const env = { ...services.env } as Record<string, string>;
@@ -90,6 +90,28 @@ try {
 	}
 }
 
+/** The local services' ports: the defaults, or LOCAL_*_PORT when one of them is taken. */
+function localPorts() {
+	const names = {
+		postgres: 'LOCAL_POSTGRES_PORT',
+		s3: 'LOCAL_S3_PORT',
+		smtp: 'LOCAL_SMTP_PORT',
+		mailHttp: 'LOCAL_MAIL_API_PORT',
+		oidc: 'LOCAL_OIDC_PORT'
+	} as const;
+	const ports: Partial<Record<keyof typeof names, number>> = {};
+	for (const [key, name] of Object.entries(names) as [keyof typeof names, string][]) {
+		const raw = environment[name];
+		if (!raw) continue;
+		const port = Number(raw);
+		if (!Number.isInteger(port) || port <= 0 || port > 65535) {
+			throw new SetupError(`${name}=${raw} is not a port number`);
+		}
+		ports[key] = port;
+	}
+	return { ...ports, app: appPort };
+}
+
 function printBanner(running: Services, url: string) {
 	const { env } = running;
 	const lines = ['', `Phonotherm is running at ${url}`, ''];
@@ -105,7 +127,7 @@ function printBanner(running: Services, url: string) {
 		lines.push('', `Demo accounts${demo.project ? ` (project ${demo.project})` : ''}:`);
 		for (const account of demo.accounts ?? []) {
 			lines.push(
-				`  ${account.role.padEnd(9)} ${account.email.padEnd(36)} ${account.password}   ${account.name}`
+				`  ${account.role.padEnd(9)} ${account.email.padEnd(36)} ${account.password.padEnd(20)} ${account.name}`
 			);
 		}
 	} else {

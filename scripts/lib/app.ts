@@ -140,7 +140,12 @@ export async function serveApp(
 	const stop = async () => {
 		if (alive) {
 			child.kill('SIGTERM');
-			const timer = setTimeout(() => alive && child.kill('SIGKILL'), 10_000);
+			const timer = setTimeout(() => {
+				if (!alive) return;
+				// adapter-node waits for open handles (database pools, queue workers) to close.
+				console.log('phonotherm: the app server did not stop within 10 s of SIGTERM; killing it');
+				child.kill('SIGKILL');
+			}, 10_000);
 			await exited;
 			clearTimeout(timer);
 		}

@@ -22,7 +22,8 @@ export async function assertPortFree(port: number, what: string): Promise<void> 
 				error.code === 'EADDRINUSE'
 					? new SetupError(
 							`port ${port} on ${LOOPBACK} is already taken, so ${what} cannot start there. ` +
-								`Stop whatever uses it (\`ss -ltnp 'sport = :${port}'\` shows it) or choose another port.`
+								`Stop whatever uses it (\`ss -ltnp 'sport = :${port}'\` shows it) or choose another port ` +
+								'(PORT and the LOCAL_*_PORT variables in .env.example).'
 						)
 					: error
 			);
@@ -49,7 +50,7 @@ export function describeListenError(error: unknown, port: number, what: string):
 	if ((error as NodeJS.ErrnoException)?.code === 'EADDRINUSE') {
 		return new SetupError(
 			`port ${port} on ${LOOPBACK} is already taken, so ${what} cannot start there. ` +
-				`Stop whatever uses it or choose another port.`
+				`Stop whatever uses it or choose another port (the LOCAL_*_PORT variables in .env.example).`
 		);
 	}
 	return error instanceof Error ? error : new Error(String(error));
