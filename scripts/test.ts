@@ -88,7 +88,8 @@ try {
 	await runSeed(env);
 	await buildIfStale(env);
 	if (interrupted) throw new Error('interrupted');
-	app = await serveApp(env, { logFile: appLog });
+	// Its data is thrown away, so a short grace period is enough.
+	app = await serveApp(env, { logFile: appLog, graceMs: 2_000 });
 	log(`app serving at ${app.url} (log in ${appLog}); running vitest (${elapsed()})`);
 
 	// Vitest overwrites BASE_URL in process.env with Vite's base ('/'), so tests read APP_URL.

@@ -116,12 +116,16 @@ export interface AppServer {
 }
 
 /**
- * Serves build/ with `node build` and waits until it answers. Output goes to the terminal, or
+ * Serves build/ with `node build` and waits until it answers; stop() gives it graceMs to exit. Output goes to the terminal, or
  * to logFile when given (tests keep their output readable).
  */
 export async function serveApp(
 	env: Record<string, string>,
-	{ logFile, timeoutMs = 60_000 }: { logFile?: string; timeoutMs?: number } = {}
+	{
+		logFile,
+		timeoutMs = 60_000,
+		graceMs = 10_000
+	}: { logFile?: string; timeoutMs?: number; graceMs?: number } = {}
 ): Promise<AppServer> {
 	const out = logFile ? createWriteStream(logFile, { flags: 'a' }) : undefined;
 	const child = spawn(process.execPath, ['build'], {
@@ -143,9 +147,11 @@ export async function serveApp(
 			const timer = setTimeout(() => {
 				if (!alive) return;
 				// adapter-node waits for open handles (database pools, queue workers) to close.
-				console.log('phonotherm: the app server did not stop within 10 s of SIGTERM; killing it');
+				console.log(
+					`phonotherm: the app server did not stop within ${graceMs / 1000} s of SIGTERM; killing it`
+				);
 				child.kill('SIGKILL');
-			}, 10_000);
+			}, graceMs);
 			await exited;
 			clearTimeout(timer);
 		}
