@@ -116,8 +116,8 @@ export interface AppServer {
 }
 
 /**
- * Serves build/ with `node build` and waits until it answers; stop() gives it graceMs to exit. Output goes to the terminal, or
- * to logFile when given (tests keep their output readable).
+ * Serves build/ with `node build` and waits until it answers; stop() gives it graceMs to exit.
+ * Output goes to the terminal, or to logFile when given (tests keep their output readable).
  */
 export async function serveApp(
 	env: Record<string, string>,
