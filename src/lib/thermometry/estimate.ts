@@ -304,7 +304,8 @@ function analyseMode(
 	const jointBudget = budgetOf(jointModel, j.temperatureK, n);
 
 	// 3. Flags.
-	const snrS = s.band.area / s.band.u_area;
+	const snrS =
+		method === 'joint-fit' ? j.stokes.area / j.stokes.u_area : s.band.area / s.band.u_area;
 	const snrAS = j.antiStokes.area / j.antiStokes.u_area;
 	if (!(snrS >= 5))
 		flags.push(makeFlag('no-stokes-signal', `Stokes area/u = ${snrS.toFixed(1)}.`, mode));

@@ -177,3 +177,67 @@ export function syntheticPair(spec: SyntheticSpec): SyntheticPair {
 		}
 	};
 }
+
+/** Band positions and widths close to physics.md §4; exact values do not matter for a round trip. */
+export const SYNTHETIC_MATERIALS = [
+	{ name: 'Si', mode: 520.7, fwhm: 3.5 },
+	{ name: 'Ge', mode: 300.7, fwhm: 5.3 },
+	{ name: 'diamond', mode: 1332.5, fwhm: 2.2 },
+	{ name: 'GaN E2(high)', mode: 567.6, fwhm: 4 },
+	{ name: 'sapphire A1g', mode: 418, fwhm: 3 },
+	{ name: 'anatase Eg', mode: 144, fwhm: 9 }
+];
+const SYNTHETIC_LASERS = [488, 532, 633, 785];
+const SYNTHETIC_SHAPES: Lineshape[] = ['lorentzian', 'gaussian', 'pseudo-voigt'];
+
+/**
+ * A random but realistic case (seeded by i): material, laser, T in 200–1200 K, lineshape,
+ * exponent, C, 3·10³–10⁵ anti-Stokes counts, background, spikes, axis offset, dark level.
+ */
+export function randomSyntheticSpec(i: number): SyntheticSpec {
+	const r = createRng(1000 + i);
+	const m = SYNTHETIC_MATERIALS[i % SYNTHETIC_MATERIALS.length];
+	const laserNm = SYNTHETIC_LASERS[Math.floor(r.uniform() * SYNTHETIC_LASERS.length)];
+	const temperatureK = 200 + 1000 * r.uniform();
+	const lineshape = SYNTHETIC_SHAPES[Math.floor(r.uniform() * 3)];
+	const exponent = r.uniform() < 0.8 ? 3 : 4;
+	const c = 0.7 + 0.6 * r.uniform();
+	// Enough anti-Stokes counts to measure: 3·10³ … 10⁵, log-uniform.
+	const nAs = Math.exp(Math.log(3e3) + r.uniform() * Math.log(1e5 / 3e3));
+	const probe: SyntheticSpec = {
+		laserNm,
+		modeCm1: m.mode,
+		temperatureK,
+		exponent,
+		lineshape,
+		fwhmCm1: m.fwhm,
+		c,
+		stokesCounts: 1
+	};
+	const ratio = trueAreas(probe).ratio;
+	const kind = Math.floor(r.uniform() * 3);
+	const exposureS = { stokes: 1 + 9 * r.uniform(), antiStokes: 1 + 29 * r.uniform() };
+	// Stokes counts such that the anti-Stokes exposure collects nAs counts.
+	const stokesCounts = Math.max(((nAs / ratio) * exposureS.stokes) / exposureS.antiStokes, 1e4);
+	const level = ((0.02 + 0.3 * r.uniform()) * stokesCounts) / 30; // background vs Stokes peak counts
+	return {
+		...probe,
+		eta: 0.2 + 0.6 * r.uniform(),
+		stokesCounts,
+		exposureS,
+		window: { halfRangeCm1: Math.min(150, m.mode - 20), points: 2000 },
+		baseline:
+			kind === 0
+				? undefined
+				: {
+						level,
+						slope: (r.uniform() - 0.5) * 2e-3,
+						curvature: kind === 2 ? 2e-6 : 0,
+						antiStokesFraction: 0.05
+					},
+		spikes: Math.floor(r.uniform() * 6),
+		axisOffsetCm1: (r.uniform() - 0.5) * 6,
+		darkCounts: r.uniform() < 0.5 ? 0 : 300,
+		seed: 5000 + i
+	};
+}
