@@ -16,7 +16,7 @@ import { pathToFileURL } from 'node:url';
 import { z } from 'zod';
 import {
 	analyzePair,
-	toJson,
+	jsonReplacer,
 	type AnalyzeOptions,
 	type DarkSource,
 	type PairInputs
@@ -366,7 +366,7 @@ export function runCli(argv: string[], io: CliIo): number {
 			try {
 				// Command-line options are defaults; a case's own keys win.
 				const reading = runCase({ ...defaults, ...c }, baseDir, read);
-				io.out(JSON.stringify(id === undefined ? toJson(reading) : { id, ...toJson(reading) }));
+				io.out(JSON.stringify(id === undefined ? reading : { id, ...reading }, jsonReplacer));
 			} catch (e) {
 				refused = true;
 				io.out(JSON.stringify(id === undefined ? errorJson(e) : { id, ...errorJson(e) }));
@@ -376,7 +376,7 @@ export function runCli(argv: string[], io: CliIo): number {
 	}
 	try {
 		const reading = runCase(raw, io.cwd, read);
-		io.out(raw.json ? JSON.stringify(toJson(reading)) : summary(reading));
+		io.out(raw.json ? JSON.stringify(reading, jsonReplacer) : summary(reading));
 		return 0;
 	} catch (e) {
 		io.out(JSON.stringify(errorJson(e)));

@@ -261,15 +261,16 @@ export function analyzePair(inputs: PairInputs, options: AnalyzeOptions): Readin
 	return reading;
 }
 
-/** The reading as plain JSON data: typed arrays to arrays, non-finite numbers to null. */
+/** JSON.stringify replacer for readings: typed arrays to arrays, non-finite numbers to null. */
+export function jsonReplacer(_key: string, value: unknown): unknown {
+	if (typeof value === 'number' && !Number.isFinite(value)) return null;
+	if (ArrayBuffer.isView(value)) return Array.from(value as unknown as ArrayLike<number>);
+	return value;
+}
+
+/** The reading as plain JSON data (what the CLI prints and the API returns). */
 export function toJson(reading: Reading): Record<string, unknown> {
-	return JSON.parse(
-		JSON.stringify(reading, (_key, value) => {
-			if (typeof value === 'number' && !Number.isFinite(value)) return null;
-			if (ArrayBuffer.isView(value)) return Array.from(value as unknown as ArrayLike<number>);
-			return value;
-		})
-	);
+	return JSON.parse(JSON.stringify(reading, jsonReplacer));
 }
 
 export type { ParsedSpectrum };

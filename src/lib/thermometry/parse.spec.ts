@@ -188,3 +188,35 @@ describe('parseSpectrum: refusals', () => {
 		expect(e.message).toContain('nodata.jdx');
 	});
 });
+
+describe('parseSpectrum: direct split and papaparse agree on plain text', () => {
+	it('gives identical results on every format of the fixtures', async () => {
+		const { readFileSync, readdirSync } = await import('node:fs');
+		const dir = new URL('../../../fixtures/spectra/', import.meta.url);
+		const files = readdirSync(dir).filter((f) => /\.(csv|tsv)$/.test(f) && !f.startsWith('broken'));
+		expect(files.length).toBeGreaterThan(3);
+		for (const f of files) {
+			const text = readFileSync(new URL(f, dir), 'utf8');
+			const a = parseSpectrum({ name: f, text });
+			const b = parseSpectrum({ name: f, text }, { forcePapaparse: true });
+			expect(Array.from(a.x)).toEqual(Array.from(b.x));
+			expect(Array.from(a.y)).toEqual(Array.from(b.y));
+			expect(Array.from(a.rows)).toEqual(Array.from(b.rows));
+			expect(a.xLabel).toBe(b.xLabel);
+		}
+		const ws = rows(30, '   ')
+			.map((l) => '  ' + l)
+			.join('\n');
+		expect(Array.from(parseSpectrum({ name: 'w', text: ws }).y)).toEqual(
+			Array.from(parseSpectrum({ name: 'w', text: ws }, { forcePapaparse: true }).y)
+		);
+	});
+
+	it('quoted headers go through papaparse', () => {
+		const text = ['"Raman shift (cm-1)","Counts, dark-subtracted"', ...rows(25)].join('\n');
+		const s = parseSpectrum({ name: 'q.csv', text });
+		expect(s.xLabel).toBe('Raman shift (cm-1)');
+		expect(s.yLabel).toBe('Counts, dark-subtracted');
+		expect(s.x.length).toBe(25);
+	});
+});

@@ -47,6 +47,8 @@ export interface ParseOptions {
 	xColumn?: number;
 	/** 0-based column of counts (default 1). */
 	yColumn?: number;
+	/** Skip the plain-text scanner and always use papaparse (tests compare the two paths). */
+	forcePapaparse?: boolean;
 	/** Fewest points accepted (default MIN_POINTS); a response table may be shorter than a spectrum. */
 	minPoints?: number;
 }
@@ -71,6 +73,10 @@ export function parseSpectrum(file: SpectrumFile, options: ParseOptions = {}): P
 	const text = file.text.charCodeAt(0) === 0xfeff ? file.text.slice(1) : file.text;
 	if (text.trim() === '') fail('empty-file', file.name, undefined, 'the file is empty.');
 	if (/^\s*##/.test(text)) return parseJcamp(file.name, text, options.minPoints ?? MIN_POINTS);
+	if (!options.forcePapaparse) {
+		const fast = scanPlain(file.name, text, options);
+		if (fast) return fast;
+	}
 	return parseDelimited(file.name, text, options);
 }
 
@@ -85,12 +91,47 @@ function detectDelimiter(lines: string[]): { delimiter: string; format: FileForm
 
 /** The number in a field, or a reason it is not one. */
 function numberOf(field: string): number | 'not-numeric' | 'not-finite' {
+	// Unary + trims whitespace itself; only an empty field also reads as 0.
+	const v = +field;
+	if (Number.isFinite(v) && (v !== 0 || field.trim() !== '')) return v;
 	const s = field.trim();
 	if (s === '') return 'not-numeric';
-	const v = +s;
-	if (Number.isFinite(v)) return v;
 	if (Number.isNaN(v) && !NON_FINITE_WORD.test(s)) return 'not-numeric';
 	return 'not-finite';
+}
+
+/** Rows of fields, one per file line, by papaparse (which knows the CSV quoting rules). */
+function splitRows(lines: string[], delimiter: string): string[][] {
+	return Papa.parse<string[]>(lines.join('\n'), {
+		delimiter,
+		newline: '\n',
+		header: false,
+		skipEmptyLines: false,
+		dynamicTyping: false
+	}).data;
+}
+
+function refuseField(
+	name: string,
+	line: number,
+	col: number,
+	field: string,
+	why: 'not-numeric' | 'not-finite'
+): never {
+	if (why === 'not-numeric') {
+		fail(
+			'not-numeric',
+			name,
+			line,
+			`column ${col + 1} holds "${field.trim().slice(0, 40)}", which is not a number.`
+		);
+	}
+	fail(
+		'not-finite',
+		name,
+		line,
+		`column ${col + 1} holds "${field.trim()}"; values must be finite numbers.`
+	);
 }
 
 function parseDelimited(name: string, text: string, options: ParseOptions): ParsedSpectrum {
@@ -115,14 +156,7 @@ function parseDelimited(name: string, text: string, options: ParseOptions): Pars
 		);
 	}
 	const { delimiter, format } = detectDelimiter(lines);
-	const parsed = Papa.parse<string[]>(lines.join('\n'), {
-		delimiter,
-		newline: '\n',
-		header: false,
-		skipEmptyLines: false,
-		dynamicTyping: false
-	});
-	const rowsIn = parsed.data;
+	const rowsIn = splitRows(lines, delimiter);
 	const xs = new Float64Array(dataLines);
 	const ys = new Float64Array(dataLines);
 	const rowNo = new Int32Array(dataLines);
@@ -163,27 +197,8 @@ function parseDelimited(name: string, text: string, options: ParseOptions): Pars
 		}
 		const x = numberOf(fields[xCol]);
 		const y = numberOf(fields[yCol]);
-		for (const [v, col] of [
-			[x, xCol],
-			[y, yCol]
-		] as const) {
-			if (v === 'not-numeric') {
-				fail(
-					'not-numeric',
-					name,
-					line,
-					`column ${col + 1} holds "${fields[col].trim().slice(0, 40)}", which is not a number.`
-				);
-			}
-			if (v === 'not-finite') {
-				fail(
-					'not-finite',
-					name,
-					line,
-					`column ${col + 1} holds "${fields[col].trim()}"; values must be finite numbers.`
-				);
-			}
-		}
+		if (typeof x !== 'number') refuseField(name, line, xCol, fields[xCol], x);
+		if (typeof y !== 'number') refuseField(name, line, yCol, fields[yCol], y);
 		xs[n] = x as number;
 		ys[n] = y as number;
 		rowNo[n] = line;
@@ -316,4 +331,191 @@ function finish(
 		yLabel,
 		reversed: descending
 	};
+}
+
+// ---------------------------------------------------------------------------------------------
+// Fast path. Spectrometers write plain unquoted numbers; splitting 2,000 such lines into field
+// arrays costs more than the fit of the bands. `scanPlain` reads them character by character
+// without allocating per line. It handles only the clean case (an optional header line, comments,
+// consistent columns, plain decimal numbers) and returns null on anything else, so every file it
+// does not fully understand, and every refusal, goes through papaparse and the checks above.
+// parse.spec.ts checks that both paths give identical results.
+// ---------------------------------------------------------------------------------------------
+
+const POW10 = Array.from({ length: 23 }, (_, i) => 10 ** i);
+let scanPos = 0;
+
+/**
+ * A plain decimal number (sign, digits, point, exponent) starting at i, or NaN. With at most 15
+ * digits and |exponent| ≤ 22 the value is mantissa × or ÷ an exact power of ten, which is the
+ * correctly rounded result (Clinger 1990), i.e. identical to Number(); otherwise Number() decides.
+ */
+function scanNumber(t: string, i: number, end: number): number {
+	const start = i;
+	let neg = false;
+	let c = t.charCodeAt(i);
+	if (c === 45 || c === 43) {
+		neg = c === 45;
+		c = t.charCodeAt(++i);
+	}
+	let mant = 0;
+	let digits = 0;
+	let exp = 0;
+	while (i < end && c >= 48 && c <= 57) {
+		mant = mant * 10 + (c - 48);
+		digits++;
+		c = t.charCodeAt(++i);
+	}
+	if (i < end && c === 46) {
+		c = t.charCodeAt(++i);
+		while (i < end && c >= 48 && c <= 57) {
+			mant = mant * 10 + (c - 48);
+			digits++;
+			exp--;
+			c = t.charCodeAt(++i);
+		}
+	}
+	if (digits === 0) return NaN;
+	if (i < end && (c === 101 || c === 69)) {
+		c = t.charCodeAt(++i);
+		let eneg = false;
+		if (c === 45 || c === 43) {
+			eneg = c === 45;
+			c = t.charCodeAt(++i);
+		}
+		let e = 0;
+		let ed = 0;
+		while (i < end && c >= 48 && c <= 57) {
+			e = e * 10 + (c - 48);
+			ed++;
+			c = t.charCodeAt(++i);
+		}
+		if (ed === 0) return NaN;
+		exp += eneg ? -e : e;
+	}
+	scanPos = i;
+	if (digits > 15 || exp > 22 || exp < -22) return Number(t.slice(start, i));
+	const v = exp >= 0 ? mant * POW10[exp] : mant / POW10[-exp];
+	return neg ? -v : v;
+}
+
+function scanPlain(name: string, text: string, options: ParseOptions): ParsedSpectrum | null {
+	if (text.includes('"')) return null;
+	const xCol = options.xColumn ?? 0;
+	const yCol = options.yColumn ?? 1;
+	const len = text.length;
+	// The delimiter from the first lines, as detectDelimiter does on the full path.
+	const head = text.slice(0, 4096).split(/\r\n|\n|\r/);
+	const { delimiter, format } = detectDelimiter(head.map((l) => (COMMENT.test(l) ? '' : l)));
+	const ws = format === 'whitespace';
+	const d = delimiter.charCodeAt(0);
+	let cap = 1024;
+	let xs = new Float64Array(cap);
+	let ys = new Float64Array(cap);
+	let rowNo = new Int32Array(cap);
+	let n = 0;
+	let columns = -1;
+	let header: string[] | undefined;
+	let line = 0;
+	let pos = 0;
+	while (pos < len) {
+		line++;
+		let eol = pos;
+		let c = 0;
+		while (eol < len && (c = text.charCodeAt(eol)) !== 10 && c !== 13) eol++;
+		const next = c === 13 && text.charCodeAt(eol + 1) === 10 ? eol + 2 : eol + 1;
+		let i = pos;
+		while (i < eol && ((c = text.charCodeAt(i)) === 32 || c === 9)) i++;
+		const lineStart = pos;
+		pos = next;
+		if (i === eol) continue; // blank line
+		if (c === 35 || c === 37 || c === 33 || (c === 47 && text.charCodeAt(i + 1) === 47)) continue;
+		// Walk the fields: parse the x and y columns, count the rest.
+		let field = 0;
+		let x = NaN;
+		let y = NaN;
+		let clean = true;
+		let j = ws ? i : lineStart;
+		for (;;) {
+			if (!ws) while (j < eol && text.charCodeAt(j) === 32) j++;
+			let v = NaN;
+			let fieldEnd = j;
+			const wanted = field === xCol || field === yCol;
+			if (wanted) v = scanNumber(text, j, eol);
+			if (wanted && !Number.isNaN(v)) {
+				fieldEnd = scanPos;
+			} else {
+				while (fieldEnd < eol && (c = text.charCodeAt(fieldEnd)) !== d && !(ws && c === 9)) {
+					if (ws && c === 32) break;
+					fieldEnd++;
+				}
+			}
+			let k = fieldEnd;
+			while (k < eol && ((c = text.charCodeAt(k)) === 32 || c === 9) && !(c === d && !ws)) k++;
+			if (Number.isNaN(v) && (field === xCol || field === yCol)) clean = false;
+			if (field === xCol) x = v;
+			if (field === yCol) y = v;
+			field++;
+			if (k >= eol) break;
+			if (ws) {
+				j = k;
+				continue;
+			}
+			if (text.charCodeAt(k) !== d) {
+				clean = false;
+				break;
+			}
+			j = k + 1;
+			// A trailing delimiter ("1,2,") is an export habit, not an extra column.
+			let m = j;
+			while (m < eol && text.charCodeAt(m) === 32) m++;
+			if (m >= eol) break;
+		}
+		if (columns === -1) {
+			columns = field;
+			if (columns < 2 || columns <= Math.max(xCol, yCol)) return null;
+			if (!clean) {
+				header = text
+					.slice(lineStart, eol)
+					.split(ws ? /\s+/ : delimiter)
+					.map((f) => f.trim())
+					.filter((f, idx, all) => !ws || f !== '' || idx < all.length - 1);
+				if (ws && header[0] === '') header.shift();
+				if (header.length !== columns) return null;
+				continue;
+			}
+		} else if (field !== columns || !clean) {
+			return null;
+		}
+		if (!Number.isFinite(x) || !Number.isFinite(y)) return null;
+		if (n === cap) {
+			cap *= 2;
+			const nx = new Float64Array(cap);
+			nx.set(xs);
+			xs = nx;
+			const ny = new Float64Array(cap);
+			ny.set(ys);
+			ys = ny;
+			const nr = new Int32Array(cap);
+			nr.set(rowNo);
+			rowNo = nr;
+		}
+		xs[n] = x;
+		ys[n] = y;
+		rowNo[n] = line;
+		n++;
+		if (n > MAX_ROWS) return null;
+	}
+	if (n === 0) return null;
+	return finish(
+		name,
+		format,
+		xs.subarray(0, n),
+		ys.subarray(0, n),
+		rowNo.subarray(0, n),
+		'row',
+		header?.[xCol],
+		header?.[yCol],
+		options.minPoints ?? MIN_POINTS
+	);
 }
