@@ -13,6 +13,7 @@ import { hasError, makeFlag } from './flags';
 import { jointFit } from './joint-fit';
 import { weightedMean } from './modes';
 import { propagate, type Distribution } from './monte-carlo';
+import { peakShiftTemperature, type PeakShiftModel } from './peak-shift';
 import { responseFactor, type ResponseFactor } from './response';
 import { chi2Tail } from './statistics';
 import {
@@ -48,6 +49,8 @@ export interface EstimateOptions {
 	/** Standard uncertainty of the laser wavenumber, cm⁻¹ (default 0). */
 	uLaserCm1?: number;
 	method?: 'joint-fit' | 'separate-bands';
+	/** Peak-shift thermometry cross-check from the Stokes band position (one model for all modes). */
+	peakShift?: PeakShiftModel;
 }
 
 /** Everything needed to re-evaluate one mode's temperature from its inputs (budget, Monte Carlo). */
@@ -438,6 +441,28 @@ function analyseMode(
 		}
 	};
 	if (method === 'joint-fit') result.axis_offset_cm1 = j.offsetCm1;
+	if (opts.peakShift && result.temperature_k !== null) {
+		const ps = peakShiftTemperature(
+			result.shift_cm1,
+			Math.hypot(result.u_shift_cm1, opts.uModeCm1 ?? 0),
+			opts.peakShift
+		);
+		result.peak_shift = {
+			temperature_k: ps.temperature_k,
+			u_temperature_k: ps.u_temperature_k,
+			model: ps.model
+		};
+		const both = Math.hypot(ps.u_temperature_k, result.u_temperature_k ?? 0);
+		if (Math.abs(ps.temperature_k - result.temperature_k) > 3 * both) {
+			flags.push(
+				makeFlag(
+					'peak-shift-disagrees',
+					`Peak shift ${ps.temperature_k.toFixed(0)} ± ${ps.u_temperature_k.toFixed(0)} K${ps.anchored ? '' : ' (model not anchored to a reference)'}; strain also moves the band.`,
+					mode
+				)
+			);
+		}
+	}
 	if (Number.isFinite(tSep) && sepBudget) {
 		result.separate = {
 			temperature_k: tSep,
