@@ -138,13 +138,14 @@ describe('analyze CLI', () => {
 		expect(r.code).toBe(2);
 
 		// The fixture batch itself uses paths relative to its own folder, run from elsewhere.
-		const own = cli(['--batch', join(fixtures, 'cases.json')], root);
+		const own = cli(['--batch', join(fixtures, 'cases.json'), '--coverage-factor', '3'], root);
 		expect(own.code).toBe(0);
-		expect(
-			own.stdout
-				.trim()
-				.split('\n')
-				.map((l) => JSON.parse(l).id)
-		).toEqual(cases.map((c) => c.id));
+		const ownLines = own.stdout
+			.trim()
+			.split('\n')
+			.map((l) => JSON.parse(l));
+		expect(ownLines.map((l) => l.id)).toEqual(cases.map((c) => c.id));
+		// Options on the command line are defaults for every case of the batch.
+		for (const l of ownLines) expect(l.coverage_factor).toBe(3);
 	});
 });

@@ -141,6 +141,33 @@ describe('analyzePair on the synthetic fixtures', () => {
 	});
 });
 
+describe('analyzePair with a response curve', () => {
+	// A flat curve R = 1 on both sides means C = 1: the same T as the constant C = 1.
+	const curve = {
+		name: 'response.csv',
+		text: ['shift,response', ...[-2000, -1000, 0, 1000, 2000].map((x) => `${x},1`)].join('\n')
+	};
+
+	it('gives the temperature of the equal constant C', () => {
+		const { inputs, options } = si532();
+		const a = analyzePair(inputs, options);
+		const b = analyzePair(
+			{ ...inputs, responseCurve: curve },
+			{ ...options, response: undefined, uResponseRelative: 0.01 }
+		);
+		expect(b.temperature_k).toBeCloseTo(a.temperature_k!, 9);
+	});
+
+	it('refuses a curve without its uncertainty', () => {
+		const { inputs, options } = si532();
+		const e = refusal(() =>
+			analyzePair({ ...inputs, responseCurve: curve }, { ...options, response: undefined })
+		);
+		expect(e.code).toBe('missing-response-uncertainty');
+		expect(e.message).toContain('response.csv');
+	});
+});
+
 describe('analyzePair refusals', () => {
 	it('a missing response calibration', () => {
 		const { inputs, options } = si532();

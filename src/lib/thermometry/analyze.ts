@@ -66,7 +66,7 @@ export interface AnalyzeOptions {
 	xAxis?: AxisUnit | 'auto';
 	/** C as a constant or from a reference run. A response curve comes in `PairInputs`. */
 	response?: Extract<ResponseSource, { kind: 'constant' } | { kind: 'reference' }>;
-	/** Relative standard uncertainty of each value of the response curve (default 0.01 = 1 %). */
+	/** Relative standard uncertainty of each value of the response curve (required with a curve). */
 	uResponseRelative?: number;
 	coverageFactor?: number;
 	monteCarlo?: { trials: number; seed?: number };
@@ -119,11 +119,12 @@ function responseSource(inputs: PairInputs, options: AnalyzeOptions): ResponseSo
 		const nm = /nm|wavelength/i.test(curve.xLabel ?? '');
 		const shift = nm ? toRamanShift(curve.x, 'wavelength', options.laserNm) : curve.x;
 		const order = Array.from(shift.keys()).sort((a, b) => shift[a] - shift[b]);
-		const u = options.uResponseRelative ?? 0.01;
-		if (!(u >= 0)) {
+		const u = options.uResponseRelative;
+		if (u === undefined || !(u >= 0)) {
 			throw new EngineError(
-				'invalid-option',
-				`The relative response uncertainty must be ≥ 0 (got ${u}).`
+				'missing-response-uncertainty',
+				`${inputs.responseCurve.name}: give the relative standard uncertainty of the response curve (e.g. 0.01 for 1 %); without it C would look exact.`,
+				{ file: inputs.responseCurve.name }
 			);
 		}
 		return {

@@ -187,6 +187,19 @@ describe('cosmic-ray spikes', () => {
 		}
 	});
 
+	it('an undersampled band (FWHM 1.5 points) at the mode is not taken for a spike', () => {
+		for (let seed = 1; seed <= 10; seed++) {
+			for (const shape of ['lorentzian', 'gaussian'] as const) {
+				const w = makeWindow({
+					bands: [{ shape, center: 521, fwhm: 1.5, height: 20000 }],
+					seed: 500 + seed
+				});
+				const r = prepareWindow(w, si);
+				expect(r.window.spikesRemoved).toBe(0);
+			}
+		}
+	});
+
 	it('a spike sitting on the band flank is found too', () => {
 		const w = makeWindow({
 			bands: [{ shape: 'lorentzian', center: 520.7, fwhm: 8, height: 5000 }],

@@ -119,14 +119,17 @@ export function findSaturation(counts: Float64Array): number | null {
  * deviations AND whose edges are steep compared with their height above the local floor. The
  * second test is what spares real bands: a band sampled by ≥ 3 points per FWHM falls by at most
  * ~60 % from one point to the next near its top (Lorentzian or Gaussian, common practice for
- * slit-limited spectrometers), while a spike falls to the floor at once. Bands narrower than
- * ~2 points per FWHM are undersampled and may be taken for spikes.
+ * slit-limited spectrometers), while a spike falls to the floor at once. Away from the expected
+ * band positions bands narrower than ~2 points per FWHM may be taken for spikes; inside the band
+ * zone only single points with a near-vertical edge are removed, which spares bands down to
+ * ~1 point per FWHM (a 2–3-point cosmic ray right on the band is then left to the fit's χ²).
  */
 export function findSpikes(
 	y: Float64Array,
 	usable: Uint8Array,
 	sigma: number,
-	readNoise2: number
+	readNoise2: number,
+	bandZone?: Uint8Array
 ): SpikeEvent[] {
 	const n = y.length;
 	const events: SpikeEvent[] = [];
@@ -161,7 +164,13 @@ export function findSpikes(
 				for (let k = Math.max(0, i - 4); k < Math.min(n, end + 4); k++) {
 					if ((k < i || k >= end) && usable[k] && y[k] < floor) floor = y[k];
 				}
-				if (!(jump >= steepness[w] * (runMin - floor))) continue;
+				// Where a band is expected, a run of 2–3 points may be a whole undersampled band, so
+				// only single points go, and only with a near-vertical edge: a band of ≥ 1 point
+				// FWHM falls by at most ~80 % to its neighbours (Lorentzian; exact arithmetic).
+				const zone = bandZone !== undefined && (bandZone[i] === 1 || bandZone[end - 1] === 1);
+				if (zone && w > 1) continue;
+				const steep = zone ? 0.85 : steepness[w];
+				if (!(jump >= steep * (runMin - floor))) continue;
 				events.push({ index: i, width: w, shift: NaN, height: runMax - neighbour });
 				// Replace by the straight line between the neighbours so later steps see no hole.
 				const a = hasL ? y[i - 1] : y[end];
@@ -262,7 +271,9 @@ export function prepareWindow(w: ShiftWindow, opts: PrepareOptions): PreparedRes
 	// 2. Cosmic-ray spikes, on raw counts.
 	const readNoise2 = (opts.readNoiseCounts ?? 0) ** 2;
 	const spikes =
-		opts.removeSpikes === false ? [] : findSpikes(raw, usable, opts.spikeSigma ?? 6, readNoise2);
+		opts.removeSpikes === false
+			? []
+			: findSpikes(raw, usable, opts.spikeSigma ?? 6, readNoise2, inBandMask);
 	for (const s of spikes) s.shift = w.shift[s.index];
 
 	// 3. Dark, interpolated on the file's own x; 4. exposure normalisation.
