@@ -6,8 +6,10 @@ const config = {
 	preprocess: vitePreprocess(),
 	kit: {
 		adapter: adapter(),
-		// Uploads from acquisition PCs are bigger than the default body limit; routes enforce their own.
-		csrf: { trustedOrigins: [] }
+		// The API takes multipart uploads from acquisition PCs, which send no Origin; it is
+		// authenticated by bearer token, not cookies. The same-origin check for every other route
+		// (pages, actions, Auth.js) is in hooks.server.ts.
+		csrf: { trustedOrigins: ['*'] }
 	}
 };
 

@@ -1,13 +1,38 @@
-import type { Handle, HandleServerError } from '@sveltejs/kit';
+import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { eq } from 'drizzle-orm';
 import { authHandle } from '$lib/server/auth';
 import { db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { env } from '$lib/server/env';
+import { startWorker } from '$lib/server/worker';
 
-// Fail at start, with a list of what is missing, rather than on the first request.
-env();
+export const init: ServerInit = async () => {
+	// Fail at start, with a list of what is missing, rather than on the first request.
+	env();
+	// The app analyses in-process too, unless a deployment runs only separate workers.
+	if (process.env.WORKER_IN_PROCESS !== 'false') await startWorker();
+};
+
+const FORM_TYPES = ['application/x-www-form-urlencoded', 'multipart/form-data', 'text/plain'];
+
+/**
+ * Cross-site form posts are refused everywhere but the token-authenticated API: the same rule
+ * as SvelteKit's own check, which is switched off in svelte.config.js for the API's sake.
+ */
+const sameOriginForms: Handle = async ({ event, resolve }) => {
+	const { request, url } = event;
+	const type = request.headers.get('content-type')?.split(';')[0].trim().toLowerCase() ?? '';
+	if (
+		!['GET', 'HEAD', 'OPTIONS'].includes(request.method) &&
+		FORM_TYPES.includes(type) &&
+		!url.pathname.startsWith('/api/') &&
+		request.headers.get('origin') !== url.origin
+	) {
+		return new Response('Cross-site form submissions are refused.', { status: 403 });
+	}
+	return resolve(event);
+};
 
 /** Re-read the signed-in person on every request, so a removed account loses access at once. */
 const currentUser: Handle = async ({ event, resolve }) => {
@@ -35,7 +60,7 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(authHandle, currentUser, securityHeaders);
+export const handle = sequence(sameOriginForms, authHandle, currentUser, securityHeaders);
 
 export const handleError: HandleServerError = ({ error, status }) => {
 	if (status !== 404) console.error(error);

@@ -4,6 +4,7 @@ import { can, type Capability, type Role, type TokenScope } from '$lib/roles';
 import { db } from './db';
 import { acquisitionTokens, memberships, projects } from './db/schema';
 import { problem } from './problem';
+import { countTokenRequest } from './ratelimit';
 import { hashSecret } from './secrets';
 
 /**
@@ -80,6 +81,7 @@ export async function requireToken(
 			`This token lacks the "${scope}" scope; ask a project owner for one that has it.`
 		);
 	}
+	await countTokenRequest(row.token.id);
 	// Last-used time is for owners auditing tokens; a lost update under concurrency is harmless.
 	await db
 		.update(acquisitionTokens)

@@ -1,0 +1,18 @@
+import type { AnalyzeOptions } from './thermometry/analyze';
+import { modesOf, type MeasurementMetadata } from './measurement-metadata';
+
+/** The engine options a measurement's metadata stands for. Shared by the worker and the browser. */
+export function analysisOptions(m: MeasurementMetadata): AnalyzeOptions {
+	return {
+		laserNm: m.laser_nm,
+		modes: modesOf(m),
+		detector: m.detector,
+		lineshape: m.lineshape,
+		exposureStokesS: m.exposure_stokes_s,
+		exposureAntiStokesS: m.exposure_anti_stokes_s,
+		xAxis: m.x_axis,
+		response: { kind: 'constant', c: m.c_factor, u_c: m.u_c_factor },
+		coverageFactor: m.coverage_factor,
+		monteCarlo: m.monte_carlo ? { trials: m.monte_carlo, seed: 1 } : undefined
+	};
+}

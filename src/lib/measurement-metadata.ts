@@ -1,0 +1,91 @@
+import { z } from 'zod';
+
+/**
+ * What an acquisition PC or a person says about a measurement, in the API's snake_case names.
+ * One schema serves the API (multipart `metadata` part), the upload page and the OpenAPI
+ * document, and maps onto the engine's options in `analysisSettings`.
+ */
+
+// Common thermometry modes (room-temperature shifts as physics.md §4 lists them, from memory
+// there); the material library of a later release replaces this short list.
+export const MATERIAL_MODES = {
+	silicon: { label: 'Silicon (c-Si), optical phonon', modes: [520.7] },
+	germanium: { label: 'Germanium, Γ phonon', modes: [300.7] },
+	diamond: { label: 'Diamond, F2g', modes: [1332.5] },
+	'gan-e2h': { label: 'GaN (wurtzite), E2(high)', modes: [567.6] },
+	'sic-4h': { label: '4H-SiC, E2 (FTO)', modes: [776] },
+	'tio2-anatase': { label: 'Anatase TiO₂, Eg', modes: [144] },
+	sapphire: { label: 'Sapphire α-Al₂O₃, A1g', modes: [418] }
+} as const;
+export type MaterialKey = keyof typeof MATERIAL_MODES;
+const materialKeys = Object.keys(MATERIAL_MODES) as [MaterialKey, ...MaterialKey[]];
+
+const positive = (what: string, unit: string) =>
+	z
+		.number({ error: `${what} must be a number (${unit}).` })
+		.positive(`${what} must be above zero.`);
+
+export const measurementMetadata = z
+	.object({
+		laser_nm: positive('laser_nm', 'nm').max(20_000).describe('Laser wavelength in vacuum, nm.'),
+		modes: z
+			.array(positive('Each mode', 'cm⁻¹').max(5000))
+			.min(1)
+			.max(8)
+			.optional()
+			.describe('Raman shifts of the bands to use, cm⁻¹ (magnitudes).'),
+		material: z
+			.enum(materialKeys, `material must be one of: ${materialKeys.join(', ')}.`)
+			.optional()
+			.describe('A material key whose modes are used when `modes` is not given.'),
+		detector: z
+			.enum(['photon-counting', 'energy'])
+			.default('photon-counting')
+			.describe('Photon-counting detectors (CCD, CMOS, PMT) use exponent 3; energy detection 4.'),
+		lineshape: z.enum(['lorentzian', 'gaussian', 'pseudo-voigt']).default('lorentzian'),
+		exposure_stokes_s: positive('exposure_stokes_s', 's').default(1),
+		exposure_anti_stokes_s: positive('exposure_anti_stokes_s', 's').default(1),
+		x_axis: z.enum(['auto', 'raman-shift', 'wavenumber', 'wavelength']).default('auto'),
+		dark_counts: z
+			.number()
+			.nonnegative()
+			.optional()
+			.describe('Constant dark level per point, counts.'),
+		c_factor: positive('c_factor', 'dimensionless').describe(
+			'Anti-Stokes/Stokes response ratio C of the instrument.'
+		),
+		u_c_factor: z
+			.number({ error: 'u_c_factor must be a number.' })
+			.nonnegative('u_c_factor must not be negative.')
+			.describe('Standard uncertainty of C.'),
+		coverage_factor: z.number().min(1).max(5).default(2),
+		monte_carlo: z.number().int().min(1000).max(200_000).optional(),
+		laser_power_mw: z.number().nonnegative().optional(),
+		label: z.string().trim().max(200).optional().describe('Sample label.'),
+		batch: z.string().trim().max(100).optional(),
+		series: z.string().trim().max(100).optional(),
+		x: z.number().optional().describe('Position on the sample, x (µm).'),
+		y: z.number().optional().describe('Position on the sample, y (µm).'),
+		acquired_at: z.iso.datetime({ offset: true }).optional()
+	})
+	.refine((m) => m.modes || m.material, {
+		path: ['modes'],
+		message: 'Give the band to use: `modes` (cm⁻¹) or a `material` key.'
+	});
+
+export type MeasurementMetadata = z.infer<typeof measurementMetadata>;
+
+export function modesOf(m: MeasurementMetadata): number[] {
+	return m.modes ?? [...MATERIAL_MODES[m.material!].modes];
+}
+
+/** Settings a re-analysis may change; the rest of the metadata stays as uploaded. */
+export const reanalysisSettings = z.object({
+	lineshape: z.enum(['lorentzian', 'gaussian', 'pseudo-voigt']).optional(),
+	detector: z.enum(['photon-counting', 'energy']).optional(),
+	c_factor: z.number().positive().optional(),
+	u_c_factor: z.number().nonnegative().optional(),
+	coverage_factor: z.number().min(1).max(5).optional(),
+	monte_carlo: z.number().int().min(1000).max(200_000).optional()
+});
+export type ReanalysisSettings = z.infer<typeof reanalysisSettings>;

@@ -1,0 +1,66 @@
+import Papa from 'papaparse';
+import { listMeasurements, type ListFilters } from './views';
+
+export const CSV_COLUMNS = [
+	'measurement_id',
+	'reading_id',
+	'uploaded_at',
+	'label',
+	'batch',
+	'series',
+	'x',
+	'y',
+	'laser_power_mw',
+	'acquired_at',
+	'status',
+	'temperature_k',
+	'u_temperature_k',
+	'expanded_uncertainty_k',
+	'coverage_factor',
+	'method',
+	'exponent',
+	'lineshape',
+	'flags'
+] as const;
+
+/** Every reading of a project (newest reading per measurement) as CSV, page by page. */
+export async function readingsCsv(
+	projectId: number,
+	filters: Omit<ListFilters, 'cursor' | 'limit'>
+) {
+	const rows: Record<string, unknown>[] = [];
+	let cursor: string | undefined;
+	do {
+		const page = await listMeasurements(projectId, { ...filters, limit: 500, cursor });
+		if ('error' in page) break;
+		for (const { measurement: m, reading } of page.items) {
+			const r = (reading?.result ?? {}) as Record<string, unknown>;
+			rows.push({
+				measurement_id: m.id,
+				reading_id: reading?.id ?? '',
+				uploaded_at: m.createdAt.toISOString(),
+				label: m.label ?? '',
+				batch: m.batch ?? '',
+				series: m.series ?? '',
+				x: m.x ?? '',
+				y: m.y ?? '',
+				laser_power_mw: m.laserPowerMw ?? '',
+				acquired_at: m.acquiredAt?.toISOString() ?? '',
+				status: m.status,
+				temperature_k: reading?.temperatureK ?? '',
+				u_temperature_k: reading?.uTemperatureK ?? '',
+				expanded_uncertainty_k: reading?.expandedUncertaintyK ?? '',
+				coverage_factor: reading?.coverageFactor ?? '',
+				method: r.method ?? '',
+				exponent: r.exponent ?? '',
+				lineshape: r.lineshape ?? '',
+				flags: reading?.flagCodes.join(' ') ?? ''
+			});
+		}
+		cursor = page.nextCursor ?? undefined;
+	} while (cursor);
+	return Papa.unparse({
+		fields: [...CSV_COLUMNS],
+		data: rows.map((r) => CSV_COLUMNS.map((c) => r[c]))
+	});
+}
