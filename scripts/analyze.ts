@@ -276,7 +276,19 @@ export function summary(reading: Reading): string {
 				: 'no temperature';
 		lines.push(`    mode ${m.mode_cm1} cm⁻¹ (fitted ${m.shift_cm1.toFixed(2)} cm⁻¹): ${t}`);
 	}
-	const rows = [...reading.budget].sort((a, b) => b.variance_share - a.variance_share).slice(0, 3);
+	const mc = reading.monte_carlo;
+	if (mc) {
+		const r = roundToUncertainty(mc.mean_k, mc.sd_k);
+		const lo = roundToUncertainty(mc.interval_95_k[0], mc.sd_k).value;
+		const hi = roundToUncertainty(mc.interval_95_k[1], mc.sd_k).value;
+		lines.push(
+			`    Monte Carlo (JCGM 101, ${mc.trials} trials): ${r.value} K, s.d. ${r.uncertainty} K, shortest 95 % interval [${lo}, ${hi}] K`
+		);
+	}
+	const rows = [...reading.budget]
+		.filter((r) => r.variance_share > 0)
+		.sort((a, b) => b.variance_share - a.variance_share)
+		.slice(0, 3);
 	if (rows.length) {
 		lines.push('Largest uncertainty contributions:');
 		for (const r of rows) {
@@ -404,7 +416,9 @@ if (process.argv[1] && import.meta.url === pathToFileURL(resolve(process.argv[1]
 			if (size > 1 << 16) flush();
 		},
 		err: (t) => process.stderr.write(t + '\n'),
-		cwd: process.cwd()
+		// `npm run` switches to the package folder; INIT_CWD is where the user typed the command,
+		// which is what relative file names mean to them.
+		cwd: process.env.INIT_CWD ?? process.cwd()
 	});
 	flush();
 	process.exitCode = code;

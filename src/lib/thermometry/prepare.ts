@@ -138,6 +138,12 @@ export function findSpikes(
 		let found = 0;
 		for (let i = 0; i < n; i++) {
 			if (!usable[i]) continue;
+			// Cheap pre-test: every run starting at i has runMin ≤ y[i] and a left neighbour y[i−1],
+			// so without a big step up from y[i−1] no run here can be a spike.
+			if (i > 0 && usable[i - 1]) {
+				const l = y[i - 1];
+				if (!(y[i] - l > sigma * Math.sqrt(2 * (Math.max(l, 1) + readNoise2)))) continue;
+			}
 			for (let w = 1; w <= 3; w++) {
 				const end = i + w; // first point after the run
 				if (end > n) break;
