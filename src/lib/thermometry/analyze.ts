@@ -57,7 +57,7 @@ export interface AnalyzeOptions {
 	/** photon-counting → exponent 3, energy → exponent 4 (physics.md §1.1). Default photon-counting. */
 	detector?: Detector;
 	lineshape?: Lineshape;
-	/** Exposures in s (default 1 s each); a combined file uses the Stokes one for both sides. */
+	/** Exposures in s (default 1 s each); a combined file has one exposure (either option). */
 	exposureStokesS?: number;
 	exposureAntiStokesS?: number;
 	/** Exposure of the dark file(s) when it differs from the window's, s. */
@@ -183,8 +183,20 @@ export function preparePair(inputs: PairInputs, options: AnalyzeOptions): Prepar
 	checkBandCoverage(stokes, options.modes, coverage);
 	checkBandCoverage(antiStokes, options.modes, coverage);
 
-	const tS = options.exposureStokesS ?? 1;
-	const tAS = inputs.combined ? tS : (options.exposureAntiStokesS ?? 1);
+	let tS = options.exposureStokesS ?? 1;
+	let tAS = options.exposureAntiStokesS ?? 1;
+	if (inputs.combined) {
+		// One readout holds both sides, so one exposure; two different ones are a mistake.
+		const a = options.exposureStokesS;
+		const b = options.exposureAntiStokesS;
+		if (a !== undefined && b !== undefined && a !== b) {
+			throw new EngineError(
+				'invalid-option',
+				`A combined file is one exposure, but the Stokes (${a} s) and anti-Stokes (${b} s) exposures differ.`
+			);
+		}
+		tS = tAS = a ?? b ?? 1;
+	}
 	// A shared dark file is parsed once and interpolated onto each window.
 	const shared = darkInput(inputs.dark, options.darkExposureS);
 	const common = {

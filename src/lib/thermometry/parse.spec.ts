@@ -212,6 +212,34 @@ describe('parseSpectrum: direct split and papaparse agree on plain text', () => 
 		);
 	});
 
+	it('gives identical results on header, comment, CRLF, trailing-delimiter and number variants', () => {
+		const numbers = ['1e3', '-2.5E-2', '+7', '0.000123', '12345678901234567', '.5', '5.', '1e-30'];
+		const variants: string[] = [];
+		for (const sep of [',', '\t', ';', ' ', '   ']) {
+			for (const eol of ['\n', '\r\n', '\r']) {
+				const body = Array.from(
+					{ length: 30 },
+					(_, i) => `${(400 + i * 0.37).toFixed(3)}${sep}${numbers[i % numbers.length]}`
+				);
+				variants.push(
+					[`# comment, with "quotes"? no`, `x${sep}counts`, ...body].join(eol),
+					['% instrument export', ...body.map((l) => `${l}${sep === ' ' ? '' : sep}`)].join(eol),
+					['  ', ...body.map((l) => ` ${l} `), '', '// end'].join(eol)
+				);
+			}
+		}
+		for (const text of variants) {
+			const plain = text.replace(/"/g, '');
+			const a = parseSpectrum({ name: 'v', text: plain });
+			const b = parseSpectrum({ name: 'v', text: plain }, { forcePapaparse: true });
+			expect(Array.from(a.x)).toEqual(Array.from(b.x));
+			expect(Array.from(a.y)).toEqual(Array.from(b.y));
+			expect(Array.from(a.rows)).toEqual(Array.from(b.rows));
+			expect(a.xLabel).toBe(b.xLabel);
+			expect(a.format).toBe(b.format);
+		}
+	});
+
 	it('quoted headers go through papaparse', () => {
 		const text = ['"Raman shift (cm-1)","Counts, dark-subtracted"', ...rows(25)].join('\n');
 		const s = parseSpectrum({ name: 'q.csv', text });

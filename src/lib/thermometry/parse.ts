@@ -165,7 +165,8 @@ function parseDelimited(name: string, text: string, options: ParseOptions): Pars
 	let header: string[] | undefined;
 	for (let i = 0; i < rowsIn.length; i++) {
 		let fields = rowsIn[i];
-		if (fields.length === 1 && fields[0].trim() === '') continue;
+		// A blank line, or one of blanks and delimiters only ("  ", ",,"), holds no data.
+		if (fields[0].trim() === '' && fields.every((f) => f.trim() === '')) continue;
 		// Whitespace-separated exports align columns with runs of spaces and may lead with one.
 		if (format === 'whitespace') fields = fields.filter((f) => f !== '');
 		// A trailing delimiter ("1,2,") is an export habit, not an extra column.
