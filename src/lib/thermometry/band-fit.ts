@@ -35,12 +35,23 @@ export interface BandRegion {
 	masked: number;
 }
 
+/** First index with shift[i] ≥ x (the axis is ascending). */
+export function lowerBound(shift: Float64Array, x: number): number {
+	let lo = 0;
+	let hi = shift.length;
+	while (lo < hi) {
+		const mid = (lo + hi) >> 1;
+		if (shift[mid] < x) lo = mid + 1;
+		else hi = mid;
+	}
+	return lo;
+}
+
 /** Usable points of a window with lo ≤ shift ≤ hi. */
 export function extractRegion(w: PreparedWindow, lo: number, hi: number, xref: number): BandRegion {
 	const s = w.shift;
 	const last = s.length - 1;
-	let i0 = 0;
-	while (i0 <= last && s[i0] < lo) i0++;
+	const i0 = lowerBound(s, lo);
 	let i1 = i0;
 	let n = 0;
 	let masked = 0;
@@ -149,13 +160,6 @@ class SingleBandModel implements LeastSquaresModel {
 	}
 }
 
-function median(a: number[]): number {
-	if (a.length === 0) return 0;
-	const s = a.slice().sort((p, q) => p - q);
-	const m = s.length >> 1;
-	return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
-}
-
 /** Starting values from the data: a rough straight baseline, the maximum above it, and its half-width. */
 export function startingValues(
 	w: PreparedWindow,
@@ -164,36 +168,50 @@ export function startingValues(
 	search: number
 ): { centre: number; fwhm: number; area: number; a: number; b: number; pixel: number } {
 	const s = w.shift;
-	const idx: number[] = [];
-	for (let i = 0; i < s.length; i++)
-		if (w.usable[i] && s[i] >= expected - search && s[i] <= expected + search) idx.push(i);
-	const pixel = idx.length > 1 ? (s[idx[idx.length - 1]] - s[idx[0]]) / (idx.length - 1) : 1;
-	if (idx.length < 5) return { centre: expected, fwhm: 4, area: 0, a: 0, b: 0, pixel };
-	const m = Math.max(2, Math.floor(idx.length / 10));
-	const xl = median(idx.slice(0, m).map((i) => s[i]));
-	const yl = median(idx.slice(0, m).map((i) => w.rate[i]));
-	const xh = median(idx.slice(-m).map((i) => s[i]));
-	const yh = median(idx.slice(-m).map((i) => w.rate[i]));
+	const i0 = lowerBound(s, expected - search);
+	const i1 = lowerBound(s, expected + search + 1e-12);
+	const idx = new Int32Array(Math.max(i1 - i0, 0));
+	let n = 0;
+	for (let i = i0; i < i1; i++) if (w.usable[i]) idx[n++] = i;
+	const pixel = n > 1 ? (s[idx[n - 1]] - s[idx[0]]) / (n - 1) : 1;
+	if (n < 5) return { centre: expected, fwhm: 4, area: 0, a: 0, b: 0, pixel };
+	// Baseline through the mean of the outer tenth on each side (spikes are already masked).
+	const m = Math.max(2, Math.floor(n / 10));
+	let xl = 0;
+	let yl = 0;
+	let xh = 0;
+	let yh = 0;
+	for (let k = 0; k < m; k++) {
+		xl += s[idx[k]];
+		yl += w.rate[idx[k]];
+		xh += s[idx[n - 1 - k]];
+		yh += w.rate[idx[n - 1 - k]];
+	}
+	xl /= m;
+	yl /= m;
+	xh /= m;
+	yh /= m;
 	const b = (yh - yl) / (xh - xl || 1);
-	const base = (x: number) => yl + b * (x - xl);
 	// Three-point smoothing so a single noisy pixel does not win.
-	const sm = idx.map((i, k) => {
-		const lo = idx[Math.max(k - 1, 0)];
-		const hi = idx[Math.min(k + 1, idx.length - 1)];
-		return (w.rate[lo] + w.rate[i] + w.rate[hi]) / 3 - base(s[i]);
-	});
+	const sm = new Float64Array(n);
+	for (let k = 0; k < n; k++) {
+		const lo = idx[k > 0 ? k - 1 : 0];
+		const hi = idx[k < n - 1 ? k + 1 : n - 1];
+		const i = idx[k];
+		sm[k] = (w.rate[lo] + w.rate[i] + w.rate[hi]) / 3 - (yl + b * (s[i] - xl));
+	}
 	let best = 0;
-	for (let k = 1; k < sm.length; k++) if (sm[k] > sm[best]) best = k;
+	for (let k = 1; k < n; k++) if (sm[k] > sm[best]) best = k;
 	const height = sm[best];
 	let kl = best;
 	while (kl > 0 && sm[kl] > height / 2) kl--;
 	let kr = best;
-	while (kr < sm.length - 1 && sm[kr] > height / 2) kr++;
+	while (kr < n - 1 && sm[kr] > height / 2) kr++;
 	const fwhm = Math.min(Math.max(s[idx[kr]] - s[idx[kl]], 2 * Math.abs(pixel)), search);
 	const centre = s[idx[best]];
 	// rate per pixel = area·profile·Δx ⇒ area = height/(peak profile·Δx)
 	const area = height > 0 ? areaFromHeight(lineshape, height, fwhm) / Math.abs(pixel) : 0;
-	return { centre, fwhm, area, a: base(centre), b, pixel: Math.abs(pixel) };
+	return { centre, fwhm, area, a: yl + b * (centre - xl), b, pixel: Math.abs(pixel) };
 }
 
 /** Half width of the fitted region around a band of this FWHM: enough baseline on both sides. */
@@ -224,13 +242,20 @@ export function fitBand(w: PreparedWindow, opts: BandFitOptions): BandFitResult 
 	const free = pv ? [1, +!fixed, +!fixed, 1, 1, +!fixed] : [1, +!fixed, +!fixed, 1, 1];
 	const lower = [-Infinity, lo, 0.3 * sv.pixel, -Infinity, -Infinity, 0];
 	const upper = [Infinity, hi, Math.max(5 * fwhm0, 10), Infinity, Infinity, 1];
-	const lmOpts = { free, lower, upper, chi2Abs: 1e-6, ftol: 1e-12 };
-	let fit = levenbergMarquardt(model, region.y, region.weights, start, lmOpts);
+	const lmOpts = { free, lower, upper, chi2Abs: 1e-4, ftol: 1e-12 };
+	const passes = opts.reweightPasses ?? 1;
+	let fit = levenbergMarquardt(model, region.y, region.weights, start, {
+		...lmOpts,
+		covariance: passes === 0
+	});
 	const f = new Float64Array(region.n);
-	for (let pass = 0; pass < (opts.reweightPasses ?? 1); pass++) {
+	for (let pass = 0; pass < passes; pass++) {
 		model.evaluate(fit.params, f, null);
 		reweight(region, f);
-		fit = levenbergMarquardt(model, region.y, region.weights, fit.params, lmOpts);
+		fit = levenbergMarquardt(model, region.y, region.weights, fit.params, {
+			...lmOpts,
+			covariance: pass === passes - 1
+		});
 	}
 	const p = fit.params;
 	const c = fit.covariance;

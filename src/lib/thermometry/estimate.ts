@@ -7,7 +7,7 @@
  * modes.ts; Monte Carlo (JCGM 101) is run on request.
  */
 import { combine, expanded, type BudgetInput } from './budget';
-import { fitBand, type BandFitResult } from './band-fit';
+import { fitBand, lowerBound, type BandFitResult } from './band-fit';
 import { ENGINE_VERSION, laserWavenumber } from './constants';
 import { hasError, makeFlag } from './flags';
 import { jointFit } from './joint-fit';
@@ -66,8 +66,10 @@ const SEARCH_CM1 = 25;
 
 function windowCovers(w: PreparedWindow, centre: number, half: number): number {
 	let n = 0;
-	for (let i = 0; i < w.shift.length; i++)
-		if (w.usable[i] && Math.abs(w.shift[i] - centre) <= half) n++;
+	const s = w.shift;
+	for (let i = lowerBound(s, centre - half); i < s.length && s[i] <= centre + half; i++) {
+		if (w.usable[i]) n++;
+	}
 	return n;
 }
 

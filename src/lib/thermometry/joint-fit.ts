@@ -100,7 +100,17 @@ class JointModel implements LeastSquaresModel {
 		this.invT0 = factor.kind === 'direct' ? 0 : 1 / factor.t0;
 		this.nParams = lineshape === 'pseudo-voigt' ? 10 : 9;
 		this.nPoints = s.n + as.n;
+		// Stokes rows do not depend on T or the anti-Stokes baseline, and the reverse.
+		const np = this.nParams;
+		const lo = new Int32Array(np);
+		const hi = new Int32Array(np).fill(this.nPoints);
+		lo[P_T] = lo[P_A_AS] = lo[P_B_AS] = s.n;
+		hi[P_A_S] = hi[P_B_S] = s.n;
+		this.columnLo = lo;
+		this.columnHi = hi;
 	}
+	readonly columnLo: Int32Array;
+	readonly columnHi: Int32Array;
 	/** Anti-Stokes/Stokes area factor Q = C ρⁿ e^(−c₂ν/T). */
 	factor(t: number, nu: number): number {
 		return (
@@ -219,15 +229,19 @@ export function jointFit(input: JointFitInput): JointFitResult {
 		weights.set(a.weights, s.n);
 	};
 	gather();
-	const lmOpts = { lower, upper, chi2Abs: 1e-6, ftol: 1e-12 };
-	let fit = levenbergMarquardt(model, y, weights, p0, lmOpts);
+	const lmOpts = { lower, upper, chi2Abs: 1e-4, ftol: 1e-12 };
+	const passes = input.reweightPasses ?? 1;
+	let fit = levenbergMarquardt(model, y, weights, p0, { ...lmOpts, covariance: passes === 0 });
 	const f = new Float64Array(model.nPoints);
-	for (let pass = 0; pass < (input.reweightPasses ?? 1); pass++) {
+	for (let pass = 0; pass < passes; pass++) {
 		model.evaluate(fit.params, f, null);
 		reweight(s, f, 0);
 		reweight(a, f, s.n);
 		gather();
-		fit = levenbergMarquardt(model, y, weights, fit.params, lmOpts);
+		fit = levenbergMarquardt(model, y, weights, fit.params, {
+			...lmOpts,
+			covariance: pass === passes - 1
+		});
 	}
 	model.evaluate(fit.params, f, null);
 

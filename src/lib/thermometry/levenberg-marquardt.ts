@@ -20,6 +20,9 @@ export interface LeastSquaresModel {
 	 * (column-major: one column per parameter). Must not allocate per point.
 	 */
 	evaluate(p: Float64Array, f: Float64Array, jac: Float64Array | null): void;
+	/** Optional: column j of the Jacobian is zero outside rows [columnLo[j], columnHi[j]). */
+	readonly columnLo?: ArrayLike<number>;
+	readonly columnHi?: ArrayLike<number>;
 }
 
 export interface LMOptions {
@@ -45,6 +48,8 @@ export interface LMOptions {
 	 * (JᵀWJ)⁻¹ is the covariance and the reduced χ² is a goodness-of-fit check instead.
 	 */
 	scaleCovariance?: boolean;
+	/** Skip the covariance (an intermediate fit whose parameters only start the next one). */
+	covariance?: boolean;
 }
 
 export interface LMResult {
@@ -120,8 +125,10 @@ function weightedSsr(y: Float64Array, f: Float64Array, w: Float64Array, n: numbe
 }
 
 /**
- * JᵀWJ and JᵀW(y − f) as dot products of Jacobian COLUMNS: each sum keeps its accumulator in a
- * register, several times faster in V8 than updating the matrix point by point.
+ * JᵀWJ and JᵀW(y − f) as dot products of Jacobian COLUMNS: each sum keeps its accumulators in
+ * registers (four, to break the add chain), several times faster in V8 than updating the matrix
+ * point by point. A column that is zero outside rows [lo, hi) (a baseline of one window in a
+ * joint fit) is only summed there.
  */
 function accumulateNormal(
 	jac: Float64Array,
@@ -132,12 +139,16 @@ function accumulateNormal(
 	np: number,
 	jtj: Float64Array,
 	g: Float64Array,
-	wcol: Float64Array
+	wcol: Float64Array,
+	colLo: ArrayLike<number> | undefined,
+	colHi: ArrayLike<number> | undefined
 ): void {
 	for (let j = 0; j < np; j++) {
 		const cj = j * n;
+		const lj = colLo ? colLo[j] : 0;
+		const hj = colHi ? colHi[j] : n;
 		let gj = 0;
-		for (let i = 0; i < n; i++) {
+		for (let i = lj; i < hj; i++) {
 			const v = w[i] * jac[cj + i];
 			wcol[i] = v;
 			gj += v * (y[i] - f[i]);
@@ -145,12 +156,69 @@ function accumulateNormal(
 		g[j] = gj;
 		for (let k = j; k < np; k++) {
 			const ck = k * n;
-			let s = 0;
-			for (let i = 0; i < n; i++) s += wcol[i] * jac[ck + i];
+			const lo = colLo ? Math.max(lj, colLo[k]) : 0;
+			const hi = colHi ? Math.min(hj, colHi[k]) : n;
+			let s0 = 0;
+			let s1 = 0;
+			let s2 = 0;
+			let s3 = 0;
+			let i = lo;
+			for (; i + 3 < hi; i += 4) {
+				s0 += wcol[i] * jac[ck + i];
+				s1 += wcol[i + 1] * jac[ck + i + 1];
+				s2 += wcol[i + 2] * jac[ck + i + 2];
+				s3 += wcol[i + 3] * jac[ck + i + 3];
+			}
+			for (; i < hi; i++) s0 += wcol[i] * jac[ck + i];
+			const s = s0 + s1 + s2 + s3;
 			jtj[j * np + k] = s;
 			jtj[k * np + j] = s;
 		}
 	}
+}
+
+/** Running totals for profiling and the benchmark (fits, iterations, model passes); never read by the engine. */
+export const lmCounters = { fits: 0, iterations: 0, evaluations: 0 };
+
+interface Workspace {
+	pt: Float64Array;
+	f: Float64Array;
+	ft: Float64Array;
+	jac: Float64Array;
+	jt: Float64Array;
+	wcol: Float64Array;
+	jtj: Float64Array;
+	g: Float64Array;
+	a: Float64Array;
+	delta: Float64Array;
+}
+
+/**
+ * Work arrays reused between fits of the same size: a map of thousands of pairs would otherwise
+ * allocate (and collect) the same buffers thousands of times. Safe because a fit never starts
+ * another fit from inside `evaluate`, and results are copied out.
+ */
+const workspaces = new Map<number, Workspace>();
+function workspace(n: number, np: number): Workspace {
+	const key = n * 64 + np;
+	let w = workspaces.get(key);
+	if (!w) {
+		if (workspaces.size > 32) workspaces.clear();
+		w = {
+			pt: new Float64Array(np),
+			f: new Float64Array(n),
+			ft: new Float64Array(n),
+			jac: new Float64Array(n * np),
+			jt: new Float64Array(n * np),
+			wcol: new Float64Array(n),
+			jtj: new Float64Array(np * np),
+			g: new Float64Array(np),
+			a: new Float64Array(np * np),
+			delta: new Float64Array(np)
+		};
+		workspaces.set(key, w);
+	}
+	return w;
 }
 
 export function levenbergMarquardt(
@@ -174,15 +242,9 @@ export function levenbergMarquardt(
 	const yv = y instanceof Float64Array ? y : Float64Array.from(y);
 	const wv = weights instanceof Float64Array ? weights : Float64Array.from(weights);
 	const p = Float64Array.from(start);
-	const pt = new Float64Array(np);
-	let f = new Float64Array(n);
-	let ft = new Float64Array(n);
-	const jac = new Float64Array(n * np);
-	const wcol = new Float64Array(n);
-	const jtj = new Float64Array(np * np);
-	const g = new Float64Array(np);
-	const a = new Float64Array(np * np);
-	const delta = new Float64Array(np);
+	const ws = workspace(n, np);
+	const { pt, wcol, jtj, g, a, delta } = ws;
+	let { f, ft, jac, jt } = ws;
 
 	const clamp = (q: Float64Array) => {
 		if (lower) for (let j = 0; j < np; j++) if (q[j] < lower[j]) q[j] = lower[j];
@@ -190,7 +252,7 @@ export function levenbergMarquardt(
 	};
 	const chi2Of = (fv: Float64Array) => weightedSsr(yv, fv, wv, n);
 	const normalEquations = () => {
-		accumulateNormal(jac, f, yv, wv, n, np, jtj, g, wcol);
+		accumulateNormal(jac, f, yv, wv, n, np, jtj, g, wcol, model.columnLo, model.columnHi);
 		if (free) {
 			for (let j = 0; j < np; j++) {
 				if (free[j]) continue;
@@ -229,7 +291,10 @@ export function levenbergMarquardt(
 			}
 			for (let j = 0; j < np; j++) pt[j] = p[j] + delta[j];
 			clamp(pt);
-			model.evaluate(pt, ft, null);
+			// The Jacobian is computed at the trial point too: steps are rarely rejected from our
+			// starting values, so this saves a second model pass per accepted step.
+			model.evaluate(pt, ft, jt);
+			lmCounters.evaluations++;
 			const chi2t = chi2Of(ft);
 			if (chi2t <= chi2 && Number.isFinite(chi2t)) {
 				let stepRel = 0;
@@ -240,12 +305,14 @@ export function levenbergMarquardt(
 				const drop = chi2 - chi2t;
 				const fall = chi2 > 0 ? drop / chi2 : 0;
 				p.set(pt);
-				const tmp = f;
+				const tf = f;
 				f = ft;
-				ft = tmp;
+				ft = tf;
+				const tj = jac;
+				jac = jt;
+				jt = tj;
 				chi2 = chi2t;
 				lambda = Math.max(lambda / 10, 1e-15);
-				model.evaluate(p, f, jac);
 				if ((fall < ftol || drop < chi2Abs) && iterations > 1) {
 					reason = 'ftol';
 					converged = true;
@@ -268,11 +335,16 @@ export function levenbergMarquardt(
 		}
 	}
 
-	normalEquations();
+	lmCounters.fits++;
+	lmCounters.iterations += iterations;
 	const dof =
 		n - (free ? Array.from({ length: np }, (_, j) => free[j]).filter(Boolean).length : np);
 	const reducedChi2 = dof > 0 ? chi2 / dof : NaN;
-	const inv = spdInverse(jtj, np);
+	let inv: Float64Array | null = null;
+	if (opts.covariance !== false) {
+		normalEquations();
+		inv = spdInverse(jtj, np);
+	}
 	const covariance = inv ?? new Float64Array(np * np).fill(NaN);
 	if (free) {
 		for (let j = 0; j < np; j++) {
@@ -282,7 +354,7 @@ export function levenbergMarquardt(
 	}
 	if (opts.scaleCovariance && dof > 0)
 		for (let j = 0; j < np * np; j++) covariance[j] *= reducedChi2;
-	if (!inv) reason = 'singular';
+	if (!inv && opts.covariance !== false) reason = 'singular';
 	return {
 		params: p,
 		covariance,
@@ -290,7 +362,7 @@ export function levenbergMarquardt(
 		dof,
 		reducedChi2,
 		iterations,
-		converged: converged && inv !== null,
+		converged: converged && (inv !== null || opts.covariance === false),
 		reason
 	};
 }
