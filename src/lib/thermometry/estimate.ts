@@ -228,35 +228,90 @@ function analyseMode(
 	const method = opts.method ?? 'joint-fit';
 	const resp = responseFactor(source, nuL, mode, n);
 
-	// 1. The separate-band ratio method.
+	// 1. Each band on its own: the Stokes band, then the anti-Stokes band where it stands out.
 	const s = fitBand(stokes, {
 		lineshape: opts.lineshape,
 		expectedCentre: mode,
 		searchCm1: SEARCH_CM1
 	});
 	const shape = { centre: -s.band.center_cm1, fwhm: s.band.fwhm_cm1, eta: s.band.eta ?? 0.5 };
-	// The anti-Stokes band on its own where it stands out; otherwise with the Stokes shape.
 	let as: BandFitResult = fitBand(antiStokes, {
 		lineshape: opts.lineshape,
 		expectedCentre: shape.centre,
 		searchCm1: 2 * shape.fwhm + 8
 	});
-	let shapeFixed = false;
 	const sane =
 		as.converged &&
 		as.band.area > 10 * as.band.u_area &&
 		as.band.fwhm_cm1 > 0.5 * shape.fwhm &&
 		as.band.fwhm_cm1 < 2 * shape.fwhm;
-	if (!sane) {
+	let shapeFixed = false;
+	let offsetGuess: number;
+	if (sane) {
+		offsetGuess = (s.band.center_cm1 + as.band.center_cm1) / 2;
+	} else {
+		// Too weak to fit its own shape: take the Stokes shape, at the position the free fit
+		// suggests when it found something there (the laser line may be off zero).
+		const found =
+			as.converged &&
+			as.band.area > 3 * as.band.u_area &&
+			Math.abs(as.band.center_cm1 - shape.centre) < shape.fwhm + 8;
+		offsetGuess = found ? (s.band.center_cm1 + as.band.center_cm1) / 2 : 0;
 		as = fitBand(antiStokes, {
 			lineshape: opts.lineshape,
 			expectedCentre: shape.centre,
-			fixShape: shape
+			fixShape: { ...shape, centre: shape.centre + 2 * offsetGuess }
 		});
 		shapeFixed = true;
 	}
-	const sepShift = shapeFixed ? s.band.center_cm1 : (s.band.center_cm1 - as.band.center_cm1) / 2;
-	const sepOffset = shapeFixed ? 0 : (s.band.center_cm1 + as.band.center_cm1) / 2;
+	const shiftGuess = s.band.center_cm1 - offsetGuess;
+	const ratioGuess = as.band.area / s.band.area;
+	const tGuess =
+		resp.kind === 'reference' && resp.reference
+			? temperatureFromReference(ratioGuess, resp.reference.ratio, resp.reference.t0_k, shiftGuess)
+			: temperatureFromRatio(ratioGuess, {
+					c: resp.c,
+					modeCm1: shiftGuess,
+					laserCm1: nuL,
+					exponent: n
+				});
+
+	// 2. The joint fit, started from the separate fits.
+	const j = jointFit({
+		stokes: s.region,
+		antiStokes: as.region,
+		lineshape: opts.lineshape,
+		laserCm1: nuL,
+		exponent: n,
+		factor:
+			resp.kind === 'reference' && resp.reference
+				? { kind: 'reference', r0: resp.reference.ratio, t0: resp.reference.t0_k }
+				: { kind: 'direct', c: resp.c },
+		start: {
+			stokesArea: s.band.area,
+			temperatureK: Number.isFinite(tGuess) ? tGuess : 300,
+			shiftCm1: shiftGuess,
+			fwhmCm1: s.band.fwhm_cm1,
+			offsetCm1: offsetGuess,
+			eta: s.band.eta ?? 0.5,
+			stokesBaseline: s.band.baseline,
+			antiStokesBaseline: as.band.baseline
+		}
+	});
+	if (shapeFixed) {
+		// The separate estimate of a weak band: its area with the shape both bands share.
+		as = fitBand(antiStokes, {
+			lineshape: opts.lineshape,
+			expectedCentre: j.antiStokes.center_cm1,
+			fixShape: {
+				centre: j.antiStokes.center_cm1,
+				fwhm: j.antiStokes.fwhm_cm1,
+				eta: j.antiStokes.eta ?? 0.5
+			},
+			region: { lo: as.lo, hi: as.hi }
+		});
+	}
+	const sepShift = shapeFixed ? j.shiftCm1 : (s.band.center_cm1 - as.band.center_cm1) / 2;
 	const sepModel = modeModel(
 		'separate-bands',
 		resp,
@@ -275,28 +330,6 @@ function analyseMode(
 	const uRatioSep =
 		Math.abs(ratioSep) * Math.hypot(s.band.u_area / s.band.area, as.band.u_area / as.band.area);
 
-	// 2. The joint fit, started from the separate one.
-	const j = jointFit({
-		stokes: s.region,
-		antiStokes: as.region,
-		lineshape: opts.lineshape,
-		laserCm1: nuL,
-		exponent: n,
-		factor:
-			resp.kind === 'reference' && resp.reference
-				? { kind: 'reference', r0: resp.reference.ratio, t0: resp.reference.t0_k }
-				: { kind: 'direct', c: resp.c },
-		start: {
-			stokesArea: s.band.area,
-			temperatureK: Number.isFinite(tSep) ? tSep : 300,
-			shiftCm1: sepShift,
-			fwhmCm1: s.band.fwhm_cm1,
-			offsetCm1: sepOffset,
-			eta: s.band.eta ?? 0.5,
-			stokesBaseline: s.band.baseline,
-			antiStokesBaseline: as.band.baseline
-		}
-	});
 	const jointModel = modeModel(
 		'joint-fit',
 		resp,
@@ -387,7 +420,7 @@ function analyseMode(
 			)
 		: NaN;
 	if (Number.isFinite(tSep) && Number.isFinite(uStatS)) {
-		const sd = Math.sqrt(Math.max(uStatS ** 2 - uStatJ ** 2, 0.1 * uStatS ** 2));
+		const sd = Math.sqrt(Math.max(uStatS ** 2 - uStatJ ** 2, 0.25 * uStatS ** 2));
 		if (Math.abs(j.temperatureK - tSep) > 4 * sd) {
 			flags.push(
 				makeFlag(
