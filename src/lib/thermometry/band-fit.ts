@@ -125,7 +125,7 @@ export interface BandFitResult {
 }
 
 /** Parameters: 0 area, 1 centre, 2 FWHM, 3 baseline a (at xref), 4 baseline slope b, [5 η]. */
-class SingleBandModel implements LeastSquaresModel {
+export class SingleBandModel implements LeastSquaresModel {
 	readonly nParams: number;
 	readonly nPoints: number;
 	private readonly d = new Float64Array(3);

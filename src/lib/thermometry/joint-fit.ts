@@ -77,7 +77,7 @@ export interface JointFitResult {
 	fit: LMResult;
 }
 
-class JointModel implements LeastSquaresModel {
+export class JointModel implements LeastSquaresModel {
 	readonly nParams: number;
 	readonly nPoints: number;
 	private readonly d = new Float64Array(3);
