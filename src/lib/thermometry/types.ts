@@ -64,7 +64,11 @@ export type ResponseSource =
 	  };
 
 export interface BudgetRow {
-	/** Stable key: `ratio`, `area_stokes`, `area_anti_stokes`, `c_factor`, `mode_shift`, `laser_wavenumber`, `t0`. */
+	/**
+	 * Stable key: `ratio`, `area_stokes`, `area_anti_stokes`, `c_factor`, `mode_shift`,
+	 * `laser_wavenumber`, `t0`, `reference_ratio`. In the budget of a multi-mode mean, inputs
+	 * that belong to one mode carry it as a suffix, e.g. `ratio@520.7`.
+	 */
 	input: string;
 	/** For a person, e.g. "Response ratio C". */
 	label: string;
