@@ -12,6 +12,7 @@ import {
 	type AxisUnit,
 	type ShiftWindow
 } from './axis';
+import { findResidualSpikes } from './despike';
 import { estimate, type EstimateOptions } from './estimate';
 import { parseSpectrum, type ParsedSpectrum, type SpectrumFile } from './parse';
 import {
@@ -264,7 +265,30 @@ export function analyzePair(inputs: PairInputs, options: AnalyzeOptions): Readin
 		uLaserCm1: options.uLaserCm1,
 		method: options.method
 	};
-	const reading = estimate(pair.stokes.window, pair.antiStokes.window, opts);
+	let reading = estimate(pair.stokes.window, pair.antiStokes.window, opts);
+	// Cosmic rays hiding on a band top are found against the fitted band, then the pair refitted.
+	for (let pass = 0; pass < 4 && options.removeSpikes !== false; pass++) {
+		let found = 0;
+		for (const m of reading.modes) {
+			for (const [prep, band] of [
+				[pair.stokes, m.stokes],
+				[pair.antiStokes, m.anti_stokes]
+			] as const) {
+				if (!band) continue;
+				const hits = findResidualSpikes(prep.window, band, opts.lineshape);
+				for (const i of hits) prep.window.usable[i] = 0;
+				// Adjacent hits are one cosmic ray.
+				const events = hits.filter((h, j) => j === 0 || hits[j - 1] !== h - 1).length;
+				prep.window.spikesRemoved += events;
+				if (events > 0 && !prep.flags.some((f) => f.code === 'spikes-removed')) {
+					prep.flags.push({ code: 'spikes-removed', severity: 'info', message: '' });
+				}
+				found += events;
+			}
+		}
+		if (found === 0) break;
+		reading = estimate(pair.stokes.window, pair.antiStokes.window, opts);
+	}
 	const mine = mergeFlags([...pair.stokes.flags, ...pair.antiStokes.flags], pair);
 	const theirs = reading.flags.filter(
 		(f) => !PREPARATION_FLAGS.has(f.code) || mine.every((m) => m.code !== f.code)
