@@ -1,6 +1,12 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { analyzePair, toJson, type AnalyzeOptions, type PairInputs } from './analyze';
+import {
+	analyzePair,
+	analyzePairDetailed,
+	toJson,
+	type AnalyzeOptions,
+	type PairInputs
+} from './analyze';
 import { EngineError } from './types';
 
 // Synthetic fixtures with known temperatures (fixtures/spectra/README.md, made by
@@ -169,6 +175,12 @@ describe('cosmic rays on a band', () => {
 		expect(Math.abs(hit.temperature_k! - clean.temperature_k!)).toBeLessThan(
 			clean.u_temperature_k! / 5
 		);
+		const detailed = analyzePairDetailed(
+			{ ...inputs, stokes: { name: 'hit.csv', text: lines.join('\n') } },
+			options
+		);
+		expect(detailed.reading.temperature_k).toBe(hit.temperature_k);
+		expect(detailed.prepared.stokes.window.spikesRemoved).toBe(1);
 		const off = analyzePair(
 			{ ...inputs, stokes: { name: 'hit.csv', text: lines.join('\n') } },
 			{ ...options, removeSpikes: false }

@@ -250,6 +250,17 @@ function mergeFlags(flags: Flag[], pair: PreparedPair): Flag[] {
 
 /** Turn a measurement's files and options into a reading. Throws `EngineError` on refused input. */
 export function analyzePair(inputs: PairInputs, options: AnalyzeOptions): Reading {
+	return analyzePairDetailed(inputs, options).reading;
+}
+
+/**
+ * `analyzePair` plus the prepared windows it fitted (final masks, spikes of both passes, the
+ * subtracted baseline), for callers that also plot the spectra: one parse and one preparation.
+ */
+export function analyzePairDetailed(
+	inputs: PairInputs,
+	options: AnalyzeOptions
+): { reading: Reading; prepared: PreparedPair } {
 	const response = responseSource(inputs, options);
 	const pair = preparePair(inputs, options);
 	const opts: EstimateOptions = {
@@ -295,7 +306,7 @@ export function analyzePair(inputs: PairInputs, options: AnalyzeOptions): Readin
 	);
 	reading.flags = [...mine, ...theirs];
 	reading.spikes_removed = pair.stokes.window.spikesRemoved + pair.antiStokes.window.spikesRemoved;
-	return reading;
+	return { reading, prepared: pair };
 }
 
 /** JSON.stringify replacer for readings: typed arrays to arrays, non-finite numbers to null. */

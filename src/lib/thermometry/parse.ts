@@ -230,7 +230,12 @@ function parseJcamp(name: string, text: string, minPoints: number): ParsedSpectr
 	const spectrum = entry?.spectra[0];
 	const data = spectrum?.data as { x?: ArrayLike<number>; y?: ArrayLike<number> } | undefined;
 	if (!spectrum || !data?.x || !data?.y || data.x.length === 0) {
-		fail('empty-file', name, undefined, 'the JCAMP-DX file holds no XYDATA or XYPOINTS block.');
+		fail(
+			'empty-file',
+			name,
+			undefined,
+			'the JCAMP-DX file holds no readable data block (XYDATA or PEAK TABLE).'
+		);
 	}
 	const x = data.x;
 	const y = data.y;
