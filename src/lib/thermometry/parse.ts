@@ -426,10 +426,14 @@ function scanPlain(name: string, text: string, options: ParseOptions): ParsedSpe
 	let pos = 0;
 	while (pos < len) {
 		line++;
-		let eol = pos;
+		// Native indexOf finds the line end far faster than a character loop. A CR before it
+		// (CRLF) is not part of the line; CR-only files leave a CR inside, fail the scan below and
+		// go the papaparse way.
+		let eol = text.indexOf('\n', pos);
+		if (eol < 0) eol = len;
+		const next = eol + 1;
+		if (eol > pos && text.charCodeAt(eol - 1) === 13) eol--;
 		let c = 0;
-		while (eol < len && (c = text.charCodeAt(eol)) !== 10 && c !== 13) eol++;
-		const next = c === 13 && text.charCodeAt(eol + 1) === 10 ? eol + 2 : eol + 1;
 		let i = pos;
 		while (i < eol && ((c = text.charCodeAt(i)) === 32 || c === 9)) i++;
 		const lineStart = pos;

@@ -286,42 +286,43 @@ export function prepareWindow(w: ShiftWindow, opts: PrepareOptions): PreparedRes
 	const t = opts.exposureS;
 	const rate = new Float64Array(n);
 	const variance = new Float64Array(n);
-	let darkAt: (i: number) => { value: number; variance: number } = () => ({
-		value: 0,
-		variance: 0
-	});
+	// Dark value and its own variance per point (counts); typed arrays, no per-point objects.
+	let darkValue: Float64Array | null = null;
+	let darkVariance: Float64Array | null = null;
+	let darkConstant = 0;
 	if (opts.dark?.kind === 'constant') {
-		const c = opts.dark.counts;
-		darkAt = () => ({ value: c, variance: 0 });
+		darkConstant = opts.dark.counts;
 	} else if (opts.dark?.kind === 'spectrum') {
 		const d = opts.dark.spectrum;
 		const scale = opts.dark.exposureS ? t / opts.dark.exposureS : 1;
 		// A dark frame catches cosmic rays too; clean it the same way before using it.
 		const dy = Float64Array.from(d.y);
 		findSpikes(dy, new Uint8Array(dy.length).fill(1), opts.spikeSigma ?? 6, readNoise2);
-		const values = new Float64Array(n);
+		darkValue = new Float64Array(n);
+		darkVariance = new Float64Array(n);
 		for (let i = 0; i < n; i++) {
-			values[i] = interpolate(d.x, dy, w.fileX[i]);
-			if (Number.isNaN(values[i])) {
+			const v = interpolate(d.x, dy, w.fileX[i]);
+			if (Number.isNaN(v)) {
 				throw new EngineError(
 					'dark-axis-mismatch',
 					`${d.file}: the dark covers x = ${d.x[0]} … ${d.x[d.x.length - 1]} but the ${side} window (${w.source}) needs x = ${w.fileX[i]} (row ${w.rows[i]}); the dark must span the window on the same axis.`,
 					{ file: d.file }
 				);
 			}
+			darkValue[i] = v * scale;
+			// Its own Poisson variance, scaled with it.
+			darkVariance[i] = Math.max(v, 1) * scale * scale;
 		}
-		darkAt = (i) => ({
-			value: values[i] * scale,
-			variance: Math.max(values[i], 1) * scale * scale
-		});
 	}
+	const t2 = t * t;
 	for (let i = 0; i < n; i++) {
-		const dk = darkAt(i);
-		rate[i] = (raw[i] - dk.value) / t;
+		const dv = darkValue === null ? darkConstant : darkValue[i];
+		const dvar = darkVariance === null ? 0 : darkVariance[i];
+		rate[i] = (raw[i] - dv) / t;
 		// Poisson variance of the raw counts (floored at 1 so an empty pixel keeps a finite weight),
 		// plus the dark's own variance and read noise. An electronic offset in the raw counts makes
 		// this slightly conservative.
-		variance[i] = (Math.max(raw[i], 1) + dk.variance + readNoise2) / (t * t);
+		variance[i] = (Math.max(raw[i], 1) + dvar + readNoise2) / t2;
 	}
 
 	// 5. Fluorescence baseline, on request.
