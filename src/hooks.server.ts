@@ -2,16 +2,24 @@ import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { eq } from 'drizzle-orm';
 import { authHandle } from '$lib/server/auth';
-import { db } from '$lib/server/db';
+import { closeDb, db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { env } from '$lib/server/env';
+import { stopQueue } from '$lib/server/queue';
 import { startWorker } from '$lib/server/worker';
 
 export const init: ServerInit = async () => {
 	// Fail at start, with a list of what is missing, rather than on the first request.
 	env();
 	// The app analyses in-process too, unless a deployment runs only separate workers.
-	if (process.env.WORKER_IN_PROCESS !== 'false') await startWorker();
+	const worker = process.env.WORKER_IN_PROCESS !== 'false' ? await startWorker() : null;
+	// adapter-node emits this after it stops taking requests; let the current job finish, then
+	// close the queue and the pool so the process can exit.
+	process.once('sveltekit:shutdown', async () => {
+		await worker?.stop();
+		await stopQueue();
+		await closeDb();
+	});
 };
 
 const FORM_TYPES = ['application/x-www-form-urlencoded', 'multipart/form-data', 'text/plain'];

@@ -130,7 +130,9 @@ export async function serveApp(
 	const out = logFile ? createWriteStream(logFile, { flags: 'a' }) : undefined;
 	const child = spawn(process.execPath, ['build'], {
 		cwd: ROOT,
-		env: { ...process.env, ...env },
+		// adapter-node's own body limit (512 KiB) would refuse uploads before the API can answer
+		// with its own limits in problem+json; the routes enforce those.
+		env: { BODY_SIZE_LIMIT: '100M', ...process.env, ...env },
 		stdio: ['ignore', out ? 'pipe' : 'inherit', out ? 'pipe' : 'inherit']
 	});
 	if (out) {
