@@ -1,4 +1,4 @@
-import { sql } from 'drizzle-orm';
+import { lt, sql } from 'drizzle-orm';
 import { db } from './db';
 import { tokenRequestCounts } from './db/schema';
 import { TOKEN_REQUESTS_PER_MINUTE } from './measurements/limits';
@@ -29,4 +29,11 @@ export async function countTokenRequest(tokenId: number, limit = TOKEN_REQUESTS_
 		Object.assign(p.headers, { 'retry-after': String(retryAfter) });
 		throw p;
 	}
+}
+
+/** Drop counters older than an hour; workers call this now and then. */
+export async function pruneRequestCounts() {
+	await db
+		.delete(tokenRequestCounts)
+		.where(lt(tokenRequestCounts.windowStart, new Date(Date.now() - 3600_000)));
 }

@@ -1,7 +1,7 @@
 import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { and, desc, eq, ne } from 'drizzle-orm';
 import { analysisOptions } from '../../analysis-options';
-import { analyzePair, preparePair, toJson, type PairInputs } from '../../thermometry/analyze';
+import { analyzePairDetailed, toJson, type PairInputs } from '../../thermometry/analyze';
 import { EngineError, type Reading, type Severity } from '../../thermometry/types';
 import { recordAudit } from '../audit';
 import { db } from '../db';
@@ -15,6 +15,9 @@ import {
 } from '../db/schema';
 import { bucket, s3 } from '../storage';
 import { notifyUploader } from './notify';
+
+/** Attempts across retries and hand-overs before an analysis is failed for good. */
+const MAX_ATTEMPTS = 10;
 
 const SEVERITY_ORDER: (Severity | 'none')[] = ['none', 'info', 'warning', 'error'];
 
@@ -50,6 +53,13 @@ export type Outcome = 'done' | 'failed' | 'skipped';
 export async function runAnalysis(analysisId: string): Promise<Outcome> {
 	const analysis = await db.query.analyses.findFirst({ where: eq(analyses.id, analysisId) });
 	if (!analysis || analysis.status === 'done' || analysis.status === 'failed') return 'skipped';
+	if (analysis.attempts >= MAX_ATTEMPTS) {
+		await fail(analysisId, analysis.measurementId, {
+			code: 'analysis-gave-up',
+			message: `The analysis did not complete in ${MAX_ATTEMPTS} attempts (the files could not be read, or the worker kept stopping). Re-analyse the measurement once storage is reachable.`
+		});
+		return 'failed';
+	}
 
 	await db.transaction(async (tx) => {
 		await tx
@@ -84,8 +94,9 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 	let reading: Reading;
 	let spectra: ReadingSpectra;
 	try {
-		reading = analyzePair(inputs, options);
-		const pair = preparePair(inputs, options);
+		const detailed = analyzePairDetailed(inputs, options);
+		reading = detailed.reading;
+		const pair = detailed.prepared;
 		spectra = {
 			stokes: plotWindow(pair.stokes.window, pair.stokes.baseline),
 			anti_stokes: plotWindow(pair.antiStokes.window, pair.antiStokes.baseline)

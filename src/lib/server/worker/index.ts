@@ -1,6 +1,7 @@
 import type PgBoss from 'pg-boss';
 import { ANALYSIS_QUEUE, queue } from '../queue';
 import { sweepStrandedAnalyses, type AnalysisJob } from '../measurements/jobs';
+import { pruneRequestCounts } from '../ratelimit';
 import { runAnalysis } from './analyse';
 
 /**
@@ -30,6 +31,7 @@ export async function startWorker(
 	}
 	const sweep = async () => {
 		try {
+			await pruneRequestCounts();
 			const n = await sweepStrandedAnalyses();
 			if (n) log(`worker: re-sent ${n} stranded analyses`);
 		} catch (err) {
