@@ -1,0 +1,130 @@
+import { error, redirect } from '@sveltejs/kit';
+import { eq } from 'drizzle-orm';
+import { z } from 'zod';
+import { requireProject } from '$lib/server/access';
+import { db } from '$lib/server/db';
+import { acquisitionTokens, users } from '$lib/server/db/schema';
+import { parseForm } from '$lib/server/forms';
+import { loadMeasurement } from '$lib/server/measurements/views';
+import { requestReanalysis } from '$lib/server/measurements/reanalyse';
+import { reanalysisSettings, type ReanalysisSettings } from '$lib/measurement-metadata';
+import type { Reading } from '$lib/thermometry/types';
+import type { Actions, PageServerLoad } from './$types';
+import { measurementWithReading, readingHistory } from './reading.server';
+
+export const load: PageServerLoad = async (event) => {
+	const { project } = await requireProject(event, 'read');
+	event.depends('app:reading');
+	const id = event.params.id;
+	const found = await measurementWithReading(project.id, id, event.url.searchParams.get('reading'));
+	const { measurement: m, reading } = found;
+	const [history, uploader] = await Promise.all([readingHistory(id), uploadedBy(m)]);
+	return {
+		measurement: {
+			id: m.id,
+			status: m.status,
+			label: m.label,
+			batch: m.batch,
+			series: m.series,
+			x: m.x,
+			y: m.y,
+			laserPowerMw: m.laserPowerMw,
+			acquiredAt: m.acquiredAt,
+			createdAt: m.createdAt,
+			metadata: m.metadata,
+			uploadedBy: uploader
+		},
+		files: found.files.map((f) => ({
+			part: f.part,
+			fileName: f.fileName,
+			bytes: f.bytes,
+			sha256: f.sha256
+		})),
+		failure: found.analysis?.status === 'failed' ? found.analysis.failure : null,
+		newestAnalysisStatus: found.analysis?.status ?? m.status,
+		latestReadingId: found.latestReadingId,
+		reading: reading
+			? {
+					id: reading.id,
+					createdAt: reading.createdAt,
+					result: reading.result as unknown as Reading,
+					spectra: reading.spectra,
+					settings: history.find((h) => h.id === reading.id)?.settings ?? m.metadata
+				}
+			: null,
+		history
+	};
+};
+
+/** Who put the measurement in: a person's name, or the acquisition token's name. */
+async function uploadedBy(m: { uploadedBy: string | null; uploadedByToken: number | null }) {
+	if (m.uploadedByToken) {
+		const [t] = await db
+			.select({ name: acquisitionTokens.name })
+			.from(acquisitionTokens)
+			.where(eq(acquisitionTokens.id, m.uploadedByToken));
+		if (t) return { kind: 'token' as const, name: t.name };
+	}
+	if (m.uploadedBy) {
+		const [u] = await db
+			.select({ name: users.name, email: users.email })
+			.from(users)
+			.where(eq(users.id, m.uploadedBy));
+		if (u) return { kind: 'person' as const, name: u.name ?? u.email };
+	}
+	return null;
+}
+
+// Form fields arrive as strings: blank means "keep the uploaded value", numbers are coerced,
+// and the result is checked by the same schema the API uses.
+const blank = (v: unknown) => (typeof v === 'string' && v.trim() === '' ? undefined : v);
+const num = (v: unknown) => {
+	const b = blank(v);
+	return typeof b === 'string' ? Number(b.replace(',', '.')) : b;
+};
+const reanalyseForm = z.preprocess((raw) => {
+	const r = raw as Record<string, unknown>;
+	return {
+		lineshape: blank(r.lineshape),
+		detector: blank(r.detector),
+		c_factor: num(r.c_factor),
+		u_c_factor: num(r.u_c_factor),
+		coverage_factor: num(r.coverage_factor),
+		monte_carlo: num(r.monte_carlo)
+	};
+}, reanalysisSettings);
+
+const HINTS: Record<string, string> = {
+	lineshape: 'Choose Lorentzian, Gaussian or pseudo-Voigt.',
+	detector: 'Choose photon counting or energy detection.',
+	c_factor: 'C must be a number above zero, e.g. 1.000.',
+	u_c_factor: 'u(C) must be a number, zero or above.',
+	coverage_factor: 'k must be a number from 1 to 5 (2 gives about 95 %).',
+	monte_carlo: 'Trials must be a whole number from 1000 to 200000, or left empty.'
+};
+
+export const actions: Actions = {
+	reanalyse: async (event) => {
+		const { user, project } = await requireProject(event, 'reanalyse');
+		const parsed = await parseForm(event.request, reanalyseForm);
+		if (!parsed.ok) {
+			const errors = parsed.failure.data.errors;
+			for (const key of Object.keys(errors)) if (HINTS[key]) errors[key] = [HINTS[key]];
+			return parsed.failure;
+		}
+		const found = await loadMeasurement(project.id, event.params.id);
+		if (!found) error(404, 'Not found');
+		// Only what differs from the upload goes in, so the audit log shows the real change.
+		const changes = Object.fromEntries(
+			Object.entries(parsed.data).filter(
+				([k, v]) =>
+					v !== undefined && found.measurement.metadata[k as keyof ReanalysisSettings] !== v
+			)
+		) as ReanalysisSettings;
+		const analysisId = await requestReanalysis(project.id, found.measurement.id, changes, {
+			userId: user.id
+		});
+		if (!analysisId) error(404, 'Not found');
+		redirect(303, `/projects/${project.slug}/measurements/${found.measurement.id}?requested=1`);
+	}
+};

@@ -1,0 +1,19 @@
+import { error, json } from '@sveltejs/kit';
+import { requireProject } from '$lib/server/access';
+import { readingJson } from '$lib/server/measurements/views';
+import { measurementWithReading } from '../reading.server';
+import type { RequestHandler } from './$types';
+
+/** The reading (newest, or `?reading=<id>`) in the API's JSON shape, as a download. */
+export const GET: RequestHandler = async (event) => {
+	const { project } = await requireProject(event, 'read');
+	const { reading } = await measurementWithReading(
+		project.id,
+		event.params.id,
+		event.url.searchParams.get('reading')
+	);
+	if (!reading) error(404, 'This measurement has no reading yet.');
+	return json(readingJson(reading), {
+		headers: { 'content-disposition': `attachment; filename="reading-${reading.id}.json"` }
+	});
+};
