@@ -8,9 +8,11 @@ export function analysisOptions(m: MeasurementMetadata): AnalyzeOptions {
 		modes: modesOf(m),
 		detector: m.detector,
 		lineshape: m.lineshape,
-		exposureStokesS: m.exposure_stokes_s,
-		exposureAntiStokesS: m.exposure_anti_stokes_s,
+		// One exposure given stands for both windows (always so for a combined file).
+		exposureStokesS: m.exposure_stokes_s ?? m.exposure_anti_stokes_s,
+		exposureAntiStokesS: m.exposure_anti_stokes_s ?? m.exposure_stokes_s,
 		xAxis: m.x_axis,
+		baseline: { kind: m.baseline ?? 'none' },
 		response: { kind: 'constant', c: m.c_factor, u_c: m.u_c_factor },
 		coverageFactor: m.coverage_factor,
 		monteCarlo: m.monte_carlo ? { trials: m.monte_carlo, seed: 1 } : undefined

@@ -43,9 +43,21 @@ export const measurementMetadata = z
 			.default('photon-counting')
 			.describe('Photon-counting detectors (CCD, CMOS, PMT) use exponent 3; energy detection 4.'),
 		lineshape: z.enum(['lorentzian', 'gaussian', 'pseudo-voigt']).default('lorentzian'),
-		exposure_stokes_s: positive('exposure_stokes_s', 's').default(1),
-		exposure_anti_stokes_s: positive('exposure_anti_stokes_s', 's').default(1),
+		exposure_stokes_s: positive('exposure_stokes_s', 's')
+			.optional()
+			.describe(
+				'Exposure of the Stokes window (or of a combined file), s; 1 s when neither is given.'
+			),
+		exposure_anti_stokes_s: positive('exposure_anti_stokes_s', 's')
+			.optional()
+			.describe('Exposure of the anti-Stokes window, s; the Stokes one when not given.'),
 		x_axis: z.enum(['auto', 'raman-shift', 'wavenumber', 'wavelength']).default('auto'),
+		baseline: z
+			.enum(['none', 'polynomial', 'als'])
+			.default('none')
+			.describe(
+				'Broad fluorescence background removed before fitting: none (each band still gets its own local linear baseline), a polynomial, or asymmetric least squares.'
+			),
 		dark_counts: z
 			.number()
 			.nonnegative()

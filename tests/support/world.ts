@@ -35,11 +35,12 @@ export async function makeWorld(label: string): Promise<World> {
 	await db
 		.insert(memberships)
 		.values(ROLES.map((role) => ({ projectId: project.id, userId: people[role].id, role })));
+	// The owner made the token, so mail about its uploads goes to them.
 	const { secret } = await createToken(
 		project.id,
 		'test PC',
 		['measurements:write', 'measurements:read'],
-		null
+		people.owner.id
 	);
 	return { project, people, token: secret };
 }

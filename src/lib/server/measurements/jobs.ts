@@ -10,10 +10,10 @@ export interface AnalysisJob {
 /** A job that outlives this without finishing belongs to a dead worker and is handed on. */
 export const JOB_EXPIRE_SECONDS = Number(process.env.JOB_EXPIRE_SECONDS ?? 120);
 
-export async function enqueueAnalysis(analysisId: string): Promise<void> {
+export async function enqueueAnalysis(analysisId: string): Promise<string | null> {
 	try {
 		const boss = await queue();
-		await boss.send(ANALYSIS_QUEUE, { analysisId } satisfies AnalysisJob, {
+		return await boss.send(ANALYSIS_QUEUE, { analysisId } satisfies AnalysisJob, {
 			// One live job per analysis, however often it is re-sent.
 			singletonKey: analysisId,
 			retryLimit: 4,
@@ -24,6 +24,7 @@ export async function enqueueAnalysis(analysisId: string): Promise<void> {
 	} catch (err) {
 		// The analysis row is committed and stays queued; the sweep below sends it again.
 		console.error('queue: could not send analysis', analysisId, (err as Error).message);
+		return null;
 	}
 }
 
