@@ -5,5 +5,7 @@ export default defineConfig({
 	out: './drizzle',
 	dialect: 'postgresql',
 	casing: 'snake_case',
-	dbCredentials: { url: process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:55432/phonotherm' }
+	dbCredentials: {
+		url: process.env.DATABASE_URL ?? 'postgres://postgres@127.0.0.1:55432/phonotherm'
+	}
 });

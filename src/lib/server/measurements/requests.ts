@@ -108,7 +108,7 @@ export const uploadRequest = z.object({
 
 export const fromUploads = z.object({
 	metadata: z.unknown(),
-	uploads: z.record(
+	uploads: z.partialRecord(
 		z.enum(['stokes', 'anti_stokes', 'combined', 'dark']),
 		z.string().min(1).max(400)
 	)
