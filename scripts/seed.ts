@@ -3,6 +3,7 @@
 // the database keeps only a hash of the token.
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { closeDb } from '../src/lib/server/db';
+import { stopQueue } from '../src/lib/server/queue';
 import {
 	DEMO_ACCOUNTS,
 	DEMO_PROJECT_SLUG,
@@ -29,5 +30,6 @@ try {
 		JSON.parse(readFileSync(file, 'utf8'));
 	}
 } finally {
+	await stopQueue();
 	await closeDb();
 }

@@ -5,6 +5,7 @@ import { db } from '../db';
 import { memberships, projects, users } from '../db/schema';
 import { hashPassword } from '../passwords';
 import { createToken } from '../tokens';
+import { seedDemoMeasurements } from './measurements';
 
 /**
  * The demo scenario: an invented optics institute with a few projects. Everything here is
@@ -146,12 +147,17 @@ export async function seedDemo(): Promise<DemoCredentials | null> {
 		return ids;
 	});
 
-	const { secret } = await createToken(
+	const owner = await db.query.users.findFirst({ where: eq(users.email, DEMO_ACCOUNTS[0].email) });
+	const analyst = await db.query.users.findFirst({
+		where: eq(users.email, DEMO_ACCOUNTS[2].email)
+	});
+	const { id: tokenId, secret } = await createToken(
 		projectIds[DEMO_PROJECT_SLUG],
 		'Bench 2 spectrometer PC (demo)',
 		['measurements:write', 'measurements:read'],
-		null
+		owner?.id ?? null
 	);
+	await seedDemoMeasurements({ analystId: analyst!.id, tokenId });
 	return { project: DEMO_PROJECT_SLUG, accounts: DEMO_ACCOUNTS, token: secret };
 }
 
