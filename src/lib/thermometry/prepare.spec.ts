@@ -233,6 +233,23 @@ describe('saturation', () => {
 		expect(findSaturation(c)).toBe(5000);
 	});
 
+	it('one band-top point that happens to equal 2ᵏ − 1 is data, not a ceiling', () => {
+		// Seen in a seeded round trip: a Poisson band top drew exactly 16,383 = 2¹⁴ − 1 counts.
+		const c = Float64Array.from({ length: 50 }, (_, i) => 14000 + 20 * i);
+		c[30] = 16383;
+		expect(findSaturation(c)).toBeNull();
+		c[31] = 16383;
+		expect(findSaturation(c)).toBe(16383);
+	});
+
+	it('at a few hundred counts three chance ties are not a flat top; four are', () => {
+		const c = Float64Array.from({ length: 50 }, (_, i) => 400 + i);
+		c[20] = c[21] = c[22] = 637;
+		expect(findSaturation(c)).toBeNull();
+		c[23] = 637;
+		expect(findSaturation(c)).toBe(637);
+	});
+
 	it('a clipped band is refused', () => {
 		try {
 			prepareWindow(clipped(), si);

@@ -91,8 +91,9 @@ const SIDE_NAME = { stokes: 'Stokes', 'anti-stokes': 'anti-Stokes' } as const;
 
 /**
  * The detector ceiling of a raw-count window, or null. A real band top fluctuates by √N from point
- * to point, so three or more equal points at the window maximum are a flat top, not data; two equal
- * points at an ADC full scale (2ᵏ − 1) are also taken as clipped (common practice: 12–20-bit ADCs).
+ * to point, so three or more equal neighbouring points at the window maximum are a flat top, not
+ * data (four below ~3,000 counts, where chance ties are likelier); two points at an ADC full scale
+ * (2ᵏ − 1) are also taken as clipped (common practice: 12–20-bit ADCs), one alone is not.
  */
 export function findSaturation(counts: Float64Array): number | null {
 	const n = counts.length;
@@ -108,9 +109,16 @@ export function findSaturation(counts: Float64Array): number | null {
 		if (counts[i] === max) atMax++;
 		if (run > longest) longest = run;
 	}
-	if (fullScale && longest >= 1) return max;
+	// One point at 2ᵏ − 1 is no evidence: a band top of ~16,000 counts hits 16,383 by chance
+	// (seen in round trips), and refusing honest data is as wrong as fitting clipped data.
+	if (fullScale && atMax >= 2) return max;
 	// A window that is flat almost everywhere (a noise-free level) has no top to clip.
-	if (longest >= 3 && atMax < n / 2) return max;
+	if (atMax >= n / 2) return null;
+	// Two neighbours of a Poisson top at N counts tie with probability ≈ 1/√(4πN) (difference of
+	// two Poisson variables), so at a few hundred counts three equal points happen by chance about
+	// once in 10⁴ windows; there a clipped top must show four.
+	const tie = 1 / Math.sqrt(4 * Math.PI * Math.max(max, 1));
+	if (longest >= 3 && (tie < 0.005 || longest >= 4)) return max;
 	return null;
 }
 
