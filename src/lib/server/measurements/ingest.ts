@@ -141,14 +141,21 @@ export async function ingestMeasurement(input: {
 		Promise.allSettled(
 			stored.map((Key) => s3().send(new DeleteObjectCommand({ Bucket: bucket(), Key })))
 		);
+	const keys = files.map((f) => objectKey(projectId, measurementId, f.part, f.fileName));
 	try {
-		for (const f of files) {
-			const Key = objectKey(projectId, measurementId, f.part, f.fileName);
-			await s3().send(
-				new PutObjectCommand({ Bucket: bucket(), Key, Body: f.bytes, ContentType: f.contentType })
-			);
-			stored.push(Key);
-		}
+		await Promise.all(
+			files.map(async (f, i) => {
+				await s3().send(
+					new PutObjectCommand({
+						Bucket: bucket(),
+						Key: keys[i],
+						Body: f.bytes,
+						ContentType: f.contentType
+					})
+				);
+				stored.push(keys[i]);
+			})
+		);
 	} catch (err) {
 		console.error('storage:', (err as Error).message);
 		await cleanUp();
@@ -181,7 +188,7 @@ export async function ingestMeasurement(input: {
 				files.map((f, i) => ({
 					measurementId,
 					part: f.part,
-					objectKey: stored[i],
+					objectKey: keys[i],
 					fileName: f.fileName,
 					contentType: f.contentType,
 					bytes: f.bytes.byteLength,

@@ -16,15 +16,28 @@ export async function startWorker(
 	const boss: PgBoss = await queue();
 	const concurrency = options.concurrency ?? 2;
 	const ids: string[] = [];
+	// Each poll takes up to a few jobs at once: pg-boss waits the polling interval between
+	// fetches, so one job per fetch would cap a worker at two analyses a second.
 	for (let i = 0; i < concurrency; i++) {
 		ids.push(
 			await boss.work<AnalysisJob>(
 				ANALYSIS_QUEUE,
-				{ pollingIntervalSeconds: 0.5, batchSize: 1 },
-				async ([job]) => {
-					const outcome = await runAnalysis(job.data.analysisId);
-					log(`worker: analysis ${job.data.analysisId} ${outcome}`);
-					return { outcome };
+				{ pollingIntervalSeconds: 0.5, batchSize: 4 },
+				async (jobs) => {
+					await Promise.all(
+						jobs.map(async (job) => {
+							try {
+								const outcome = await runAnalysis(job.data.analysisId);
+								log(`worker: analysis ${job.data.analysisId} ${outcome}`);
+							} catch (err) {
+								// Only this job goes back for a retry with backoff; the others complete.
+								log(
+									`worker: analysis ${job.data.analysisId} will be retried: ${(err as Error).message}`
+								);
+								await boss.fail(ANALYSIS_QUEUE, job.id, { message: (err as Error).message });
+							}
+						})
+					);
 				}
 			)
 		);
