@@ -117,6 +117,8 @@ export interface BandFitOptions {
 
 export interface BandFitResult {
 	band: FittedBand;
+	/** The fitted model's rates on the region's points (counts/s per pixel). */
+	model: Float64Array;
 	converged: boolean;
 	fit: LMResult;
 	region: BandRegion;
@@ -258,6 +260,7 @@ export function fitBand(w: PreparedWindow, opts: BandFitOptions): BandFitResult 
 		});
 	}
 	const p = fit.params;
+	model.evaluate(p, f, null);
 	const c = fit.covariance;
 	const np = model.nParams;
 	const sd = (j: number) => Math.sqrt(Math.max(c[j * np + j], 0));
@@ -276,5 +279,5 @@ export function fitBand(w: PreparedWindow, opts: BandFitOptions): BandFitResult 
 		points: region.n
 	};
 	if (pv) band.eta = eta;
-	return { band, converged: fit.converged && region.n > np, fit, region, lo, hi };
+	return { band, model: f, converged: fit.converged && region.n > np, fit, region, lo, hi };
 }

@@ -7,7 +7,7 @@
  * modes.ts; Monte Carlo (JCGM 101) is run on request.
  */
 import { combine, expanded, type BudgetInput } from './budget';
-import { fitBand, lowerBound, type BandFitResult } from './band-fit';
+import { fitBand, lowerBound, reweight, type BandFitResult } from './band-fit';
 import { ENGINE_VERSION, laserWavenumber } from './constants';
 import { hasError, makeFlag } from './flags';
 import { jointFit } from './joint-fit';
@@ -276,8 +276,13 @@ function analyseMode(
 					exponent: n
 				});
 
-	// 2. The joint fit, started from the separate fits.
+	// 2. The joint fit, started from the separate fits and weighted by their converged models'
+	// Poisson variances: one pass already sits at the likelihood's fixed point (the joint and
+	// separate models predict the same rates to well within their noise), so no second pass.
+	reweight(s.region, s.model);
+	reweight(as.region, as.model);
 	const j = jointFit({
+		reweightPasses: 0,
 		stokes: s.region,
 		antiStokes: as.region,
 		lineshape: opts.lineshape,
