@@ -15,6 +15,8 @@ export function analysisOptions(m: MeasurementMetadata): AnalyzeOptions {
 		baseline: { kind: m.baseline ?? 'none' },
 		response: { kind: 'constant', c: m.c_factor, u_c: m.u_c_factor },
 		coverageFactor: m.coverage_factor,
+		uModeCm1: m.u_mode_cm1,
+		uLaserCm1: m.u_laser_cm1,
 		monteCarlo: m.monte_carlo ? { trials: m.monte_carlo, seed: 1 } : undefined
 	};
 }

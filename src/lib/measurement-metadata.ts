@@ -70,6 +70,20 @@ export const measurementMetadata = z
 			.number({ error: 'u_c_factor must be a number.' })
 			.nonnegative('u_c_factor must not be negative.')
 			.describe('Standard uncertainty of C.'),
+		u_mode_cm1: z
+			.number()
+			.nonnegative()
+			.max(50)
+			.optional()
+			.describe(
+				'Standard uncertainty of the Raman-shift axis calibration, cm⁻¹ (e.g. from neon lines); enters the budget as the mode-position row.'
+			),
+		u_laser_cm1: z
+			.number()
+			.nonnegative()
+			.max(50)
+			.optional()
+			.describe('Standard uncertainty of the laser wavenumber, cm⁻¹.'),
 		coverage_factor: z.number().min(1).max(5).default(2),
 		monte_carlo: z.number().int().min(1000).max(200_000).optional(),
 		laser_power_mw: z.number().nonnegative().optional(),
