@@ -480,7 +480,8 @@ function invertSpd(a: Float64Array, m: number): Float64Array | null {
  * Variance kept honest by a bound: for a linear smoother z = Hy with H's eigenvalues in [0, 1],
  * var(zᵢ) = Σⱼ Hᵢⱼ²σⱼ² ≤ Hᵢᵢ·max σ², and the equivalent kernel of this penalty has
  * Hᵢᵢ ≈ 1/(2√2·(λ/w̄)^¼) (Silverman's kernel for the second-difference smoother) with w̄ the mean
- * weight of the points that carried the fit. We add Hᵢᵢ·σ̄ᵢ² with σ̄² a local mean variance.
+ * weight of the points that carried the fit. We add Hᵢᵢ·σ̄ᵢ² with σ̄² a local mean of the background
+ * variance (the band's own shot noise is not the baseline's).
  */
 export function alsBaseline(
 	y: Float64Array,
@@ -529,7 +530,11 @@ export function alsBaseline(
 	}
 	std.sort((a, b) => a - b);
 	const lift = std[std.length >> 1];
-	for (let i = 0; i < n; i++) z[i] += lift * Math.sqrt(variance[i]);
+	// The noise of the BACKGROUND at each point: the variance of the points that carried the fit,
+	// carried linearly across the bands and masked points. The points' own variance there holds
+	// the band's shot noise, and lifting by it would raise the baseline in the band's shape.
+	const vb = backgroundVariance(variance, usable, exclude);
+	for (let i = 0; i < n; i++) z[i] += lift * Math.sqrt(vb[i]);
 	let wsum = 0;
 	let wcount = 0;
 	for (let i = 0; i < n; i++) {
@@ -544,25 +549,46 @@ export function alsBaseline(
 	const half = 10;
 	let acc = 0;
 	let cnt = 0;
-	// Running mean of the variance over ±10 points.
+	// Running mean of the background variance over ±10 points.
 	for (let i = 0; i < Math.min(n, half); i++) {
-		acc += variance[i];
+		acc += vb[i];
 		cnt++;
 	}
 	for (let i = 0; i < n; i++) {
 		const add = i + half;
 		if (add < n) {
-			acc += variance[add];
+			acc += vb[add];
 			cnt++;
 		}
 		const drop = i - half - 1;
 		if (drop >= 0) {
-			acc -= variance[drop];
+			acc -= vb[drop];
 			cnt--;
 		}
 		out[i] = hii * (acc / cnt);
 	}
 	return { value: z, variance: out };
+}
+
+/** Variance of the points with usable && !exclude; elsewhere linear between the nearest such points. */
+function backgroundVariance(
+	variance: Float64Array,
+	usable: Uint8Array,
+	exclude: Uint8Array
+): Float64Array {
+	const n = variance.length;
+	const out = new Float64Array(n);
+	let prev = -1;
+	for (let i = 0; i <= n; i++) {
+		const fitted = i < n && usable[i] === 1 && exclude[i] === 0;
+		if (!fitted && i < n) continue;
+		const vi = i < n ? variance[i] : prev >= 0 ? variance[prev] : 0;
+		const vp = prev >= 0 ? variance[prev] : vi;
+		for (let k = prev + 1; k < i; k++) out[k] = vp + ((vi - vp) * (k - prev)) / (i - prev);
+		if (i < n) out[i] = vi;
+		prev = i;
+	}
+	return out;
 }
 
 /** Solve a symmetric pentadiagonal system given by its diagonals (LDLᵀ, no allocation per row). */
