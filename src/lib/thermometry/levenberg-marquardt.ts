@@ -271,9 +271,29 @@ export function levenbergMarquardt(
 	let reason: LMResult['reason'] = 'max-iterations';
 	let converged = false;
 
+	// After an accepted step the normal equations at the new point tell, before any trial pass,
+	// what the next Gauss–Newton step could still gain: χ² falls by gᵀδ with (JᵀWJ)δ = g. When
+	// that is below the tolerances the fit has converged, and these normal equations are also the
+	// ones the covariance needs, so the confirming model pass and a second accumulation are saved.
+	let accepted = 0;
+	let normalAtP = false;
 	outer: while (iterations < maxIt) {
-		iterations++;
 		normalEquations();
+		normalAtP = true;
+		if (accepted > 0) {
+			a.set(jtj);
+			delta.set(g);
+			if (choleskySolve(a, delta, np)) {
+				let gain = 0;
+				for (let j = 0; j < np; j++) gain += g[j] * delta[j];
+				if (gain >= 0 && (gain < chi2Abs || (chi2 > 0 && gain < ftol * chi2))) {
+					reason = 'ftol';
+					converged = true;
+					break outer;
+				}
+			}
+		}
+		iterations++;
 		for (;;) {
 			a.set(jtj);
 			for (let j = 0; j < np; j++) {
@@ -312,6 +332,8 @@ export function levenbergMarquardt(
 				jac = jt;
 				jt = tj;
 				chi2 = chi2t;
+				normalAtP = false;
+				accepted++;
 				lambda = Math.max(lambda / 10, 1e-15);
 				if ((fall < ftol || drop < chi2Abs) && iterations > 1) {
 					reason = 'ftol';
@@ -342,7 +364,7 @@ export function levenbergMarquardt(
 	const reducedChi2 = dof > 0 ? chi2 / dof : NaN;
 	let inv: Float64Array | null = null;
 	if (opts.covariance !== false) {
-		normalEquations();
+		if (!normalAtP) normalEquations();
 		inv = spdInverse(jtj, np);
 	}
 	const covariance = inv ?? new Float64Array(np * np).fill(NaN);
