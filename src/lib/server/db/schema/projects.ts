@@ -1,5 +1,6 @@
 import {
 	bigint,
+	boolean,
 	index,
 	integer,
 	jsonb,
@@ -21,6 +22,8 @@ export const projects = pgTable('projects', {
 	slug: text().notNull().unique(),
 	name: text().notNull(),
 	description: text().notNull().default(''),
+	/** Whether each reading waits for a reviewer's sign-off (issue 7). */
+	signOffRequired: boolean().notNull().default(true),
 	...timestamps
 });
 
