@@ -103,12 +103,21 @@ export function spdInverse(m: Float64Array, n: number): Float64Array | null {
 	for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) a[i * n + j] = m[i * n + j] * s[i] * s[j];
 	const inv = new Float64Array(n * n);
 	const col = new Float64Array(n);
-	const work = new Float64Array(n * n);
+	// Factor once (L Lᵀ in the lower triangle of a), then two triangular solves per column.
+	if (!choleskySolve(a, col, n)) return null;
 	for (let c = 0; c < n; c++) {
-		work.set(a);
 		col.fill(0);
 		col[c] = 1;
-		if (!choleskySolve(work, col, n)) return null;
+		for (let i = 0; i < n; i++) {
+			let t = col[i];
+			for (let k = 0; k < i; k++) t -= a[i * n + k] * col[k];
+			col[i] = t / a[i * n + i];
+		}
+		for (let i = n - 1; i >= 0; i--) {
+			let t = col[i];
+			for (let k = i + 1; k < n; k++) t -= a[k * n + i] * col[k];
+			col[i] = t / a[i * n + i];
+		}
 		for (let r = 0; r < n; r++) inv[r * n + c] = col[r] * s[r] * s[c];
 	}
 	return inv;
