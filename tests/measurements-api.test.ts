@@ -7,7 +7,7 @@ import { eq } from 'drizzle-orm';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
-import { measurementFiles, measurements, readings } from '../src/lib/server/db/schema';
+import { measurementFiles, measurements, readings, users } from '../src/lib/server/db/schema';
 import { bucket, s3 } from '../src/lib/server/storage';
 import { createToken } from '../src/lib/server/tokens';
 import { APP_URL, waitForMail } from './support/http';
@@ -274,6 +274,67 @@ describe('refusals, each in problem+json with what to change', () => {
 	});
 });
 
+describe('large files through presigned uploads', () => {
+	it('PUTs straight to storage, then creates the measurement from the keys', async () => {
+		const stokes = fixture('si-532-stokes.csv');
+		const anti = fixture('si-532-anti-stokes.csv');
+		const asked = await fetch(`${APP_URL}/api/v1/uploads`, {
+			method: 'POST',
+			headers: { authorization: `Bearer ${world.token}`, 'content-type': 'application/json' },
+			body: JSON.stringify({
+				files: [
+					{ part: 'stokes', file_name: 'big-stokes.csv', bytes: stokes.byteLength },
+					{ part: 'anti_stokes', file_name: 'big-anti.csv', bytes: anti.byteLength }
+				]
+			})
+		});
+		expect(asked.status).toBe(201);
+		const { uploads } = await asked.json();
+		for (const u of uploads) {
+			const body = u.part === 'stokes' ? stokes : anti;
+			const put = await fetch(u.url, { method: 'PUT', body });
+			expect(put.status).toBe(200);
+		}
+		const keys = Object.fromEntries(
+			uploads.map((u: { part: string; upload_key: string }) => [u.part, u.upload_key])
+		);
+		const created = await fetch(`${APP_URL}/api/v1/measurements`, {
+			method: 'POST',
+			headers: { authorization: `Bearer ${world.token}`, 'content-type': 'application/json' },
+			body: JSON.stringify({
+				metadata: { ...FIXTURE_PAIRS[0].metadata, ...C, label: 'presigned' },
+				uploads: keys
+			})
+		});
+		expect(created.status).toBe(202);
+		const done = await waitForAnalysis(world.token, (await created.json()).id);
+		expect(done.status).toBe('done');
+		expect(done.files.find((f: { part: string }) => f.part === 'stokes').sha256).toBe(
+			createHash('sha256').update(stokes).digest('hex')
+		);
+		// The staging objects are gone once the measurement holds its own copies.
+		const staged = await s3().send(
+			new ListObjectsV2Command({ Bucket: bucket(), Prefix: keys.stokes })
+		);
+		expect(staged.Contents ?? []).toEqual([]);
+	});
+
+	it("refuses keys that are not this project's uploads", async () => {
+		const response = await fetch(`${APP_URL}/api/v1/measurements`, {
+			method: 'POST',
+			headers: { authorization: `Bearer ${world.token}`, 'content-type': 'application/json' },
+			body: JSON.stringify({
+				metadata: { ...FIXTURE_PAIRS[0].metadata, ...C },
+				uploads: {
+					stokes: `uploads/${other.project.id}/x/stokes/a.csv`,
+					anti_stokes: 'projects/1/x'
+				}
+			})
+		});
+		expect(response.status).toBe(422);
+	});
+});
+
 describe('listing and export', () => {
 	it('filters by label series and pages with a cursor', async () => {
 		const series = `sweep-${Date.now()}`;
@@ -324,6 +385,39 @@ describe('listing and export', () => {
 		expect(row.flags.split(' ').filter(Boolean)).toEqual(
 			done.reading.flags.map((f: { code: string }) => f.code)
 		);
+	});
+});
+
+describe('mail preferences', () => {
+	it('sends nothing to an uploader who switched the notices off', async () => {
+		await db
+			.update(users)
+			.set({ notifyOnProblems: false })
+			.where(eq(users.id, other.people.owner.id));
+		const started = Date.now();
+		const pair = syntheticCsv({
+			laserNm: 532,
+			modeCm1: 520.7,
+			temperatureK: 40,
+			exponent: 3,
+			lineshape: 'lorentzian',
+			fwhmCm1: 3.5,
+			stokesCounts: 2e5,
+			seed: 8
+		});
+		const response = await postMeasurement(
+			other.token,
+			{ stokes: pair.stokes, anti_stokes: pair.anti_stokes },
+			{
+				laser_nm: 532,
+				modes: [520.7],
+				x_axis: 'raman-shift',
+				...C,
+				label: 'quiet cold film'
+			}
+		);
+		await waitForAnalysis(other.token, (await response.json()).id);
+		await expect(waitForMail(other.people.owner.email, started, 3000)).rejects.toThrow(/no mail/);
 	});
 });
 
