@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { MATERIAL_KEYS, MATERIALS, type Material, type MaterialKey } from './materials';
 
 /**
  * What an acquisition PC or a person says about a measurement, in the API's snake_case names.
@@ -6,19 +7,18 @@ import { z } from 'zod';
  * document, and maps onto the engine's options in `analysisSettings`.
  */
 
-// Common thermometry modes (room-temperature shifts as physics.md §4 lists them, from memory
-// there); the material library of a later release replaces this short list.
-export const MATERIAL_MODES = {
-	silicon: { label: 'Silicon (c-Si), optical phonon', modes: [520.7] },
-	germanium: { label: 'Germanium, Γ phonon', modes: [300.7] },
-	diamond: { label: 'Diamond, F2g', modes: [1332.5] },
-	'gan-e2h': { label: 'GaN (wurtzite), E2(high)', modes: [567.6] },
-	'sic-4h': { label: '4H-SiC, E2 (FTO)', modes: [776] },
-	'tio2-anatase': { label: 'Anatase TiO₂, Eg', modes: [144] },
-	sapphire: { label: 'Sapphire α-Al₂O₃, A1g', modes: [418] }
-} as const;
-export type MaterialKey = keyof typeof MATERIAL_MODES;
-const materialKeys = Object.keys(MATERIAL_MODES) as [MaterialKey, ...MaterialKey[]];
+// The material keys a measurement may name, with the shifts of their thermometry modes, from the
+// material library (each value's source is kept there).
+export const MATERIAL_MODES = {} as Record<
+	MaterialKey,
+	{ label: string; modes: readonly number[] }
+>;
+for (const key of MATERIAL_KEYS) {
+	const m: Material = MATERIALS[key];
+	MATERIAL_MODES[key] = { label: m.label, modes: m.modes.map((mode) => mode.shiftCm1.value) };
+}
+export type { MaterialKey };
+const materialKeys = MATERIAL_KEYS;
 
 const positive = (what: string, unit: string) =>
 	z
