@@ -2,3 +2,4 @@ export * from './auth';
 export * from './projects';
 export * from './measurements';
 export * from './reviews';
+export * from './instruments';
