@@ -28,7 +28,8 @@ export async function startWorker(
 						jobs.map(async (job) => {
 							try {
 								const outcome = await runAnalysis(job.data.analysisId);
-								log(`worker: analysis ${job.data.analysisId} ${outcome}`);
+								// A job for an analysis already finished (seeded, or handed on twice) is no news.
+								if (outcome !== 'skipped') log(`worker: analysis ${job.data.analysisId} ${outcome}`);
 							} catch (err) {
 								// Only this job goes back for a retry with backoff; the others complete.
 								log(
