@@ -15,6 +15,7 @@ import os, { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { analyzePair } from '../src/lib/thermometry/analyze';
 import { estimate, type EstimateOptions } from '../src/lib/thermometry/estimate';
+import { lmCounters } from '../src/lib/thermometry/levenberg-marquardt';
 import { syntheticPair, type SyntheticSpec } from '../src/lib/thermometry/synthetic';
 import { runCli } from './analyze';
 
@@ -67,9 +68,13 @@ const pairs = Array.from({ length: 50 }, (_, i) =>
 );
 for (let i = 0; i < 200; i++)
 	estimate(pairs[i % 50].stokes.prepared, pairs[i % 50].antiStokes.prepared, estOpts); // warm-up
+const lm0 = { ...lmCounters };
 const est = timeLoop(3000, (i) =>
 	estimate(pairs[i % 50].stokes.prepared, pairs[i % 50].antiStokes.prepared, estOpts)
 );
+// Fits and LM iterations per pair: the work the estimator does, independent of machine load.
+const fitsPerPair = (lmCounters.fits - lm0.fits) / est.n;
+const itersPerPair = (lmCounters.iterations - lm0.iterations) / est.n;
 
 // Files for 2 and 3: CSV in nm, as an instrument writes them.
 const dir = mkdtempSync(join(tmpdir(), 'phonotherm-bench-'));
@@ -147,7 +152,7 @@ row(
 	'joint fit (estimate only)',
 	`${perS(est.n, est.ms)} pairs/s`,
 	`${perS(est.n, est.cpu)} pairs/s`,
-	`${fmt(est.cpu / est.n, 3)} ms CPU per pair, ${est.n} pairs`
+	`${fmt(est.cpu / est.n, 3)} ms CPU per pair, ${est.n} pairs; ${fmt(fitsPerPair, 1)} fits, ${fmt(itersPerPair, 1)} LM iterations per pair`
 );
 row(
 	'whole pipeline from CSV text',
