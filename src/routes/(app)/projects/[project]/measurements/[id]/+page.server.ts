@@ -1,10 +1,11 @@
-import { error, redirect } from '@sveltejs/kit';
+import { error, fail, redirect } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { requireProject } from '$lib/server/access';
 import { db } from '$lib/server/db';
 import { acquisitionTokens, users } from '$lib/server/db/schema';
-import { parseForm } from '$lib/server/forms';
+import { fieldFailure, parseForm } from '$lib/server/forms';
+import { approve, decisionsFor, returnReading, type SignOffResult } from '$lib/server/reviews';
 import { loadMeasurement } from '$lib/server/measurements/views';
 import { requestReanalysis } from '$lib/server/measurements/reanalyse';
 import { reanalysisSettings, type ReanalysisSettings } from '$lib/measurement-metadata';
@@ -18,7 +19,11 @@ export const load: PageServerLoad = async (event) => {
 	const id = event.params.id;
 	const found = await measurementWithReading(project.id, id, event.url.searchParams.get('reading'));
 	const { measurement: m, reading } = found;
-	const [history, uploader] = await Promise.all([readingHistory(id), uploadedBy(m)]);
+	const [history, uploader, decisions] = await Promise.all([
+		readingHistory(id),
+		uploadedBy(m),
+		reading ? decisionsFor(reading.id) : []
+	]);
 	return {
 		measurement: {
 			id: m.id,
@@ -52,7 +57,8 @@ export const load: PageServerLoad = async (event) => {
 					settings: history.find((h) => h.id === reading.id)?.settings ?? m.metadata
 				}
 			: null,
-		history
+		history,
+		signOff: { required: project.signOffRequired, decisions }
 	};
 };
 
@@ -126,5 +132,40 @@ export const actions: Actions = {
 		});
 		if (!analysisId) error(404, 'Not found');
 		redirect(303, `/projects/${project.slug}/measurements/${found.measurement.id}?requested=1`);
-	}
+	},
+	approve: (event) => signOff(approve)(event),
+	return: (event) => signOff(returnReading)(event)
 };
+
+const signOffForm = z.object({
+	reading: z.uuid(),
+	comment: z.string().max(4000, 'Keep the comment under 4000 characters.').default('')
+});
+
+/** A sign-off action: approve or return the reading named in the form. */
+function signOff(decide: typeof returnReading) {
+	return async (event: Parameters<Actions[string]>[0]) => {
+		const { user, project } = await requireProject(event, 'sign-off');
+		const parsed = await parseForm(event.request, signOffForm);
+		if (!parsed.ok) return parsed.failure;
+		const result: SignOffResult = await decide(
+			project.id,
+			parsed.data.reading,
+			user.id,
+			parsed.data.comment
+		);
+		if (!result.ok) {
+			if (result.reason === 'not-found') error(404, 'This measurement has no such reading.');
+			if (result.reason === 'comment-required')
+				return fieldFailure(400, 'comment', 'Say what the analyst should change before returning.');
+			return fail(409, {
+				errors: { decision: ['This reading is already approved; its sign-off is final.'] },
+				values: {} as Record<string, string>
+			});
+		}
+		redirect(
+			303,
+			`/projects/${project.slug}/measurements/${event.params.id}?reading=${parsed.data.reading}`
+		);
+	};
+}
