@@ -240,6 +240,35 @@ describe('parseSpectrum: direct split and papaparse agree on plain text', () => 
 		}
 	});
 
+	it('agrees line by line where a two-column line is not plain (the quick line path falls back)', () => {
+		const outcome = (text: string, force: boolean) => {
+			try {
+				const r = parseSpectrum({ name: 'l', text }, { forcePapaparse: force });
+				return { x: Array.from(r.x), y: Array.from(r.y), rows: Array.from(r.rows) };
+			} catch (e) {
+				return { code: (e as EngineError).code, row: (e as EngineError).details?.row };
+			}
+		};
+		const odd = [
+			'1.5abc,2',
+			'\t401,3',
+			'402,',
+			'403,4,5',
+			'404 ,\t5\t',
+			'405,1e400',
+			' 406 , 7 ',
+			'407,,8'
+		];
+		for (const sep of [',', '\t', ';']) {
+			for (const line of odd) {
+				const body = Array.from({ length: 30 }, (_, i) => `${300 + i}${sep}${i}`);
+				body.splice(12, 0, line.replace(/,/g, sep));
+				const text = ['x,y'.replace(',', sep), ...body].join('\n');
+				expect(outcome(text, false)).toEqual(outcome(text, true));
+			}
+		}
+	});
+
 	it('quoted headers go through papaparse', () => {
 		const text = ['"Raman shift (cm-1)","Counts, dark-subtracted"', ...rows(25)].join('\n');
 		const s = parseSpectrum({ name: 'q.csv', text });

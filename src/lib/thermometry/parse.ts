@@ -420,6 +420,19 @@ function scanPlain(name: string, text: string, options: ParseOptions): ParsedSpe
 	let ys = new Float64Array(cap);
 	let rowNo = new Int32Array(cap);
 	let n = 0;
+	const grow = () => {
+		cap *= 2;
+		const nx = new Float64Array(cap);
+		nx.set(xs);
+		xs = nx;
+		const ny = new Float64Array(cap);
+		ny.set(ys);
+		ys = ny;
+		const nr = new Int32Array(cap);
+		nr.set(rowNo);
+		rowNo = nr;
+	};
+	const twoColumns = !ws && xCol === 0 && yCol === 1;
 	let columns = -1;
 	let header: string[] | undefined;
 	let line = 0;
@@ -440,6 +453,36 @@ function scanPlain(name: string, text: string, options: ParseOptions): ParsedSpe
 		pos = next;
 		if (i === eol) continue; // blank line
 		if (c === 35 || c === 37 || c === 33 || (c === 47 && text.charCodeAt(i + 1) === 47)) continue;
+		// The common line of a two-column delimited file, "x,y": read straight through. Anything
+		// else on the line (more fields, a trailing delimiter, stray text) takes the general walk
+		// below, which decides exactly as before.
+		if (twoColumns && columns === 2) {
+			let q = lineStart;
+			while (q < eol && text.charCodeAt(q) === 32) q++;
+			const xv = scanNumber(text, q, eol);
+			if (!Number.isNaN(xv)) {
+				q = scanPos;
+				while (q < eol && ((c = text.charCodeAt(q)) === 32 || c === 9) && c !== d) q++;
+				if (q < eol && text.charCodeAt(q) === d) {
+					q++;
+					while (q < eol && text.charCodeAt(q) === 32) q++;
+					const yv = q < eol ? scanNumber(text, q, eol) : NaN;
+					if (!Number.isNaN(yv)) {
+						q = scanPos;
+						while (q < eol && ((c = text.charCodeAt(q)) === 32 || c === 9) && c !== d) q++;
+						if (q === eol && Number.isFinite(xv) && Number.isFinite(yv)) {
+							if (n === cap) grow();
+							xs[n] = xv;
+							ys[n] = yv;
+							rowNo[n] = line;
+							n++;
+							if (n > MAX_ROWS) return null;
+							continue;
+						}
+					}
+				}
+			}
+		}
 		// Walk the fields: parse the x and y columns, count the rest.
 		let field = 0;
 		let x = NaN;
@@ -498,18 +541,7 @@ function scanPlain(name: string, text: string, options: ParseOptions): ParsedSpe
 			return null;
 		}
 		if (!Number.isFinite(x) || !Number.isFinite(y)) return null;
-		if (n === cap) {
-			cap *= 2;
-			const nx = new Float64Array(cap);
-			nx.set(xs);
-			xs = nx;
-			const ny = new Float64Array(cap);
-			ny.set(ys);
-			ys = ny;
-			const nr = new Int32Array(cap);
-			nr.set(rowNo);
-			rowNo = nr;
-		}
+		if (n === cap) grow();
 		xs[n] = x;
 		ys[n] = y;
 		rowNo[n] = line;
