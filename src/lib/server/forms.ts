@@ -1,5 +1,6 @@
 import { fail, type ActionFailure } from '@sveltejs/kit';
 import { z } from 'zod';
+import { MIN_PASSWORD_LENGTH } from './passwords';
 
 export type FieldErrors = Record<string, string[] | undefined>;
 
@@ -35,4 +36,24 @@ export const email = z
 export function fieldFailure(status: number, field: string, message: string) {
 	const errors: FieldErrors = { [field]: [message] };
 	return fail(status, { errors, values: {} as Record<string, string> });
+}
+
+/**
+ * A new password typed twice, with any other fields of the form. Used by the account page,
+ * the password-reset link and the invitation's new-account form.
+ */
+export function withNewPassword<T extends z.ZodRawShape>(shape: T) {
+	return z
+		.object({
+			...shape,
+			password: z
+				.string()
+				.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`)
+				.max(1024),
+			confirm: z.string()
+		})
+		.refine((v: { password?: unknown; confirm?: unknown }) => v.password === v.confirm, {
+			path: ['confirm'],
+			message: 'The two entries differ.'
+		});
 }

@@ -4,8 +4,8 @@ import { requireUser } from '$lib/server/access';
 import { recordAudit } from '$lib/server/audit';
 import { db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
-import { fieldFailure, parseForm } from '$lib/server/forms';
-import { hashPassword, MIN_PASSWORD_LENGTH, verifyPassword } from '$lib/server/passwords';
+import { fieldFailure, parseForm, withNewPassword } from '$lib/server/forms';
+import { hashPassword, verifyPassword } from '$lib/server/passwords';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = (event) => {
@@ -13,18 +13,9 @@ export const load: PageServerLoad = (event) => {
 	return { account: user };
 };
 
-const passwordSchema = z
-	.object({
-		current: z.string().min(1, 'Enter your current password.'),
-		password: z
-			.string()
-			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
-		confirm: z.string()
-	})
-	.refine((v) => v.password === v.confirm, {
-		path: ['confirm'],
-		message: 'The two entries differ.'
-	});
+const passwordSchema = withNewPassword({
+	current: z.string().min(1, 'Enter your current password.')
+});
 
 export const actions: Actions = {
 	password: async (event) => {

@@ -4,9 +4,9 @@ import { z } from 'zod';
 import { recordAudit } from '$lib/server/audit';
 import { db } from '$lib/server/db';
 import { memberships, projects, users } from '$lib/server/db/schema';
-import { parseForm } from '$lib/server/forms';
+import { parseForm, withNewPassword } from '$lib/server/forms';
 import { consumeLink, peekLink } from '$lib/server/links';
-import { hashPassword, MIN_PASSWORD_LENGTH } from '$lib/server/passwords';
+import { hashPassword } from '$lib/server/passwords';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async ({ params }) => {
@@ -25,18 +25,7 @@ export const load: PageServerLoad = async ({ params }) => {
 	};
 };
 
-const newAccount = z
-	.object({
-		name: z.string().trim().min(1, 'Enter your name.').max(120),
-		password: z
-			.string()
-			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
-		confirm: z.string()
-	})
-	.refine((v) => v.password === v.confirm, {
-		path: ['confirm'],
-		message: 'The two entries differ.'
-	});
+const newAccount = withNewPassword({ name: z.string().trim().min(1, 'Enter your name.').max(120) });
 
 /** Use the link and add the membership; creates the account when `create` is given. */
 async function accept(

@@ -1,25 +1,14 @@
 import { error, redirect } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
-import { z } from 'zod';
 import { recordAudit } from '$lib/server/audit';
 import { db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
-import { fieldFailure, parseForm } from '$lib/server/forms';
+import { fieldFailure, parseForm, withNewPassword } from '$lib/server/forms';
 import { consumeLink, peekLink } from '$lib/server/links';
-import { hashPassword, MIN_PASSWORD_LENGTH } from '$lib/server/passwords';
+import { hashPassword } from '$lib/server/passwords';
 import type { Actions, PageServerLoad } from './$types';
 
-const schema = z
-	.object({
-		password: z
-			.string()
-			.min(MIN_PASSWORD_LENGTH, `Use at least ${MIN_PASSWORD_LENGTH} characters.`),
-		confirm: z.string()
-	})
-	.refine((v) => v.password === v.confirm, {
-		path: ['confirm'],
-		message: 'The two entries differ.'
-	});
+const schema = withNewPassword({});
 
 export const load: PageServerLoad = async ({ params }) => {
 	const state = await peekLink(params.token, 'password-reset');
