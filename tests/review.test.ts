@@ -155,6 +155,8 @@ describe('approving a reading', () => {
 		const html = await (await s.viewer.get(page(A))).text();
 		expect(html).toContain('Approved');
 		expect(html).toContain('Budget checked.');
+		const table = await (await s.viewer.get(`/projects/${world.project.slug}/measurements`)).text();
+		expect(table).toContain('Approved');
 	});
 
 	it('refuses a second decision on an approved reading', async () => {

@@ -1,7 +1,14 @@
 import { and, asc, count, desc, eq, ilike, inArray, isNotNull, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { db } from '$lib/server/db';
-import { acquisitionTokens, analyses, measurements, readings, users } from '$lib/server/db/schema';
+import {
+	acquisitionTokens,
+	analyses,
+	measurements,
+	readings,
+	signOffs,
+	users
+} from '$lib/server/db/schema';
 import type { Flag } from '$lib/thermometry/types';
 
 /**
@@ -50,7 +57,11 @@ export async function measurementTable(projectId: number, q: TableQuery) {
 			coverageFactor: readings.coverageFactor,
 			worstSeverity: readings.worstSeverity,
 			flagCodes: readings.flagCodes,
-			flags: sql<Flag[]>`${readings.result}->'flags'`.as('flags')
+			flags: sql<Flag[]>`${readings.result}->'flags'`.as('flags'),
+			approved:
+				sql<boolean>`exists (select 1 from ${signOffs} s where s.reading_id = "readings"."id" and s.decision = 'approved')`.as(
+					'approved'
+				)
 		})
 		.from(readings)
 		.where(eq(readings.measurementId, measurements.id))
@@ -89,7 +100,8 @@ export async function measurementTable(projectId: number, q: TableQuery) {
 					expandedUncertaintyK: latest.expandedUncertaintyK,
 					coverageFactor: latest.coverageFactor,
 					worstSeverity: latest.worstSeverity,
-					flags: latest.flags
+					flags: latest.flags,
+					approved: latest.approved
 				},
 				userName: users.name,
 				userEmail: users.email,
