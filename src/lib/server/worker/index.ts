@@ -29,7 +29,8 @@ export async function startWorker(
 							try {
 								const outcome = await runAnalysis(job.data.analysisId);
 								// A job for an analysis already finished (seeded, or handed on twice) is no news.
-								if (outcome !== 'skipped') log(`worker: analysis ${job.data.analysisId} ${outcome}`);
+								if (outcome !== 'skipped')
+									log(`worker: analysis ${job.data.analysisId} ${outcome}`);
 							} catch (err) {
 								// Only this job goes back for a retry with backoff; the others complete.
 								log(
