@@ -1,10 +1,12 @@
 // Instrument profiles and project materials over HTTP, as a browser without JavaScript sends
 // them: who may read and edit, that an edit adds a version and leaves the old one readable,
-// and that a project's own material is refused or kept with its field errors.
+// that a project's own material is refused or kept with its field errors, and that the upload
+// API takes its key.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ROLES, type Role } from '../src/lib/roles';
 import { closeDb } from '../src/lib/server/db';
 import { Session, signIn } from './support/http';
+import { FIXTURE_PAIRS, fixture, postMeasurement, waitForAnalysis } from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -161,6 +163,31 @@ describe('project materials', () => {
 		expect(await dup.text()).toContain('already has a material with that key');
 	});
 
-	// Not yet wired: a project material's key in the upload API's `material` field (issue 5, later).
-	it.skip('accepts a project material key in the upload metadata', () => {});
+	it("lets the upload API name a project material's key, and refuses an unknown one", async () => {
+		const added = await sessions.owner.post(
+			`${base}/materials?/add`,
+			material({ key: 'si-wafer-b', name: 'Wafer batch B', shift_0: '520.7', mode_name_0: 'F2g' })
+		);
+		expect(added.status).toBe(200);
+		const files = {
+			stokes: fixture('si-532-stokes.csv'),
+			anti_stokes: fixture('si-532-anti-stokes.csv')
+		};
+		const { modes: _modes, ...rest } = FIXTURE_PAIRS[0].metadata;
+		const meta = { ...rest, material: 'si-wafer-b', c_factor: 1, u_c_factor: 0.02 };
+		const posted = await postMeasurement(world.token, files, meta);
+		expect(posted.status).toBe(202);
+		const done = await waitForAnalysis(world.token, (await posted.json()).id);
+		expect(done.status).toBe('done');
+		expect(done.metadata.modes).toEqual([520.7]);
+
+		const unknown = await postMeasurement(world.token, files, {
+			...meta,
+			material: 'no-such-stuff'
+		});
+		expect(unknown.status).toBe(422);
+		expect((await unknown.json()).detail).toMatch(
+			/neither a built-in key .* nor one of this project/
+		);
+	});
 });

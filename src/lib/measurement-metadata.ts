@@ -35,9 +35,17 @@ export const measurementMetadata = z
 			.optional()
 			.describe('Raman shifts of the bands to use, cm⁻¹ (magnitudes).'),
 		material: z
-			.enum(materialKeys, `material must be one of: ${materialKeys.join(', ')}.`)
+			.string({ error: 'material must be a material key.' })
+			.trim()
+			.toLowerCase()
+			.regex(
+				/^[a-z0-9][a-z0-9-]{1,39}$/,
+				`material must be a material key: one of ${materialKeys.join(', ')}, or one of the project's own.`
+			)
 			.optional()
-			.describe('A material key whose modes are used when `modes` is not given.'),
+			.describe(
+				`A material key whose modes are used when \`modes\` is not given: a built-in one (${materialKeys.join(', ')}) or one the project added.`
+			),
 		detector: z
 			.enum(['photon-counting', 'energy'])
 			.default('photon-counting')
@@ -101,8 +109,15 @@ export const measurementMetadata = z
 
 export type MeasurementMetadata = z.infer<typeof measurementMetadata>;
 
+/**
+ * The modes to fit. A project's own material key is turned into `modes` when the measurement is
+ * taken in (src/lib/server/instruments.ts), so by here the key is built in.
+ */
 export function modesOf(m: MeasurementMetadata): number[] {
-	return m.modes ?? [...MATERIAL_MODES[m.material!].modes];
+	if (m.modes) return m.modes;
+	const builtIn = MATERIAL_MODES[m.material as MaterialKey];
+	if (!builtIn) throw new Error(`material “${m.material}” has not been resolved to its modes`);
+	return [...builtIn.modes];
 }
 
 /** Settings a re-analysis may change; the rest of the metadata stays as uploaded. */

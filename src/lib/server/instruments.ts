@@ -1,8 +1,10 @@
 import { and, asc, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { MATERIAL_KEYS } from '$lib/materials';
+import type { MeasurementMetadata } from '$lib/measurement-metadata';
 import { recordAudit } from './audit';
 import { db } from './db';
+import { problem } from './problem';
 import {
 	instrumentProfiles,
 	instrumentProfileVersions,
@@ -309,4 +311,28 @@ export async function addMaterial(projectId: number, input: MaterialInput, userI
 			throw new InstrumentError('key', 'This project already has a material with that key.');
 		throw err;
 	}
+}
+
+/**
+ * A measurement that names one of the project's own materials gets that material's shifts as
+ * its `modes`, so the stored metadata alone says what was fitted (and later edits cannot change it).
+ */
+export async function resolveMaterial(
+	projectId: number,
+	metadata: MeasurementMetadata
+): Promise<MeasurementMetadata> {
+	const key = metadata.material;
+	if (!key || (MATERIAL_KEYS as readonly string[]).includes(key)) return metadata;
+	const [row] = await db
+		.select()
+		.from(materials)
+		.where(and(eq(materials.projectId, projectId), eq(materials.key, key)));
+	if (!row) {
+		throw problem(
+			422,
+			`material “${key}” is neither a built-in key (${MATERIAL_KEYS.join(', ')}) nor one of this project's materials.`,
+			{ field: 'material' }
+		);
+	}
+	return metadata.modes ? metadata : { ...metadata, modes: row.modes.map((m) => m.shiftCm1) };
 }

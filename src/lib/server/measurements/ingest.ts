@@ -7,6 +7,7 @@ import { preparePair, type PairInputs } from '../../thermometry/analyze';
 import { EngineError } from '../../thermometry/types';
 import { recordAudit, type Actor } from '../audit';
 import { db } from '../db';
+import { resolveMaterial } from '../instruments';
 import { analyses, measurementFiles, measurements } from '../db/schema';
 import { problem } from '../problem';
 import { bucket, s3 } from '../storage';
@@ -127,7 +128,8 @@ export async function ingestMeasurement(input: {
 	idempotencyKey?: string;
 	maxFileBytes?: number;
 }): Promise<{ measurement: Measurement; created: boolean }> {
-	const { projectId, actor, metadata, files, idempotencyKey } = input;
+	const { projectId, actor, files, idempotencyKey } = input;
+	const metadata = await resolveMaterial(projectId, input.metadata);
 	checkFiles(files, metadata, input.maxFileBytes);
 	const hash = requestHash(metadata, files);
 	if (idempotencyKey) {
