@@ -169,6 +169,9 @@ describe('project materials', () => {
 			material({ key: 'si-wafer-b', name: 'Wafer batch B', shift_0: '520.7', mode_name_0: 'F2g' })
 		);
 		expect(added.status).toBe(200);
+		// The upload page offers it beside the library's keys.
+		const upload = await (await sessions.analyst.get(`${base}/upload`)).text();
+		expect(upload).toContain('Wafer batch B (this project)');
 		const files = {
 			stokes: fixture('si-532-stokes.csv'),
 			anti_stokes: fixture('si-532-anti-stokes.csv')

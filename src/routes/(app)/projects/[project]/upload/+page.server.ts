@@ -1,6 +1,7 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { measurementMetadata, MATERIAL_MODES } from '$lib/measurement-metadata';
 import { requireProject } from '$lib/server/access';
+import { listProjectMaterials } from '$lib/server/instruments';
 import { ingestMeasurement, type IncomingFile, type Part } from '$lib/server/measurements/ingest';
 import { MAX_FILE_BYTES } from '$lib/server/measurements/limits';
 import { filesFromForm } from '$lib/server/measurements/requests';
@@ -11,12 +12,19 @@ import { FIELDS, issuesByField, metadataFromFields } from './metadata-form';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
-	await requireProject(event, 'upload');
-	const materials = Object.entries(MATERIAL_MODES).map(([key, m]) => ({
+	const { project } = await requireProject(event, 'upload');
+	const builtIn = Object.entries(MATERIAL_MODES).map(([key, m]) => ({
 		key,
 		label: m.label,
 		modes: [...m.modes]
 	}));
+	// The project's own materials follow the library; ingest turns their key into their modes.
+	const own = (await listProjectMaterials(project.id)).map((m) => ({
+		key: m.key,
+		label: `${m.name} (this project)`,
+		modes: m.modes.map((mode) => mode.shiftCm1)
+	}));
+	const materials = [...builtIn, ...own];
 	return { materials, maxFileBytes: MAX_FILE_BYTES };
 };
 
@@ -80,7 +88,12 @@ export const actions: Actions = {
 		} catch (err) {
 			if (!(err instanceof Problem)) throw err;
 			if (err.status === 503) return fail(503, { values, errors: {}, problem: err.detail });
-			const field = err.extra.file !== undefined ? partOf(files, err.extra.file) : 'files';
+			const field =
+				err.extra.field === 'material'
+					? 'material'
+					: err.extra.file !== undefined
+						? partOf(files, err.extra.file)
+						: 'files';
 			return fail(err.status, { values, errors: { [field]: [err.detail] } });
 		}
 		redirect(303, `/projects/${project.slug}/measurements/${id}`);
