@@ -3,7 +3,7 @@
 import { and, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
-import { auditLog, readings, signOffs } from '../src/lib/server/db/schema';
+import { auditLog, projects, readings, signOffs } from '../src/lib/server/db/schema';
 import { signIn, waitForMail, type Session } from './support/http';
 import { FIXTURE_PAIRS, fixture, postMeasurement, waitForAnalysis } from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
@@ -192,5 +192,35 @@ describe('approving a reading', () => {
 		const fresh = await s.reviewer.post(`${page(A)}?/approve`, { reading: newer!.id });
 		expect(fresh.status).toBe(303);
 		expect(await auditFor(newer!.id, 'reading.approve')).toHaveLength(1);
+	}, 60_000);
+});
+
+describe('the project setting', () => {
+	it('keeps readings of a project that needs no sign-off out of the queue and the navigation', async () => {
+		const quiet = await makeWorld('review-off');
+		await db
+			.update(projects)
+			.set({ signOffRequired: false })
+			.where(eq(projects.id, quiet.project.id));
+		const parts = Object.fromEntries(
+			Object.entries(pair.files).map(([part, name]) => [part, fixture(name)])
+		);
+		const response = await postMeasurement(quiet.token, parts, {
+			...pair.metadata,
+			c_factor: 1,
+			u_c_factor: 0.02,
+			label: 'quiet'
+		});
+		const body = await response.json();
+		expect(body).toHaveProperty('id');
+		const id = body.id as string;
+		const done = await waitForAnalysis(quiet.token, id);
+		const reviewer = await signIn(quiet.people.reviewer.email, PASSWORD);
+		expect(await (await reviewer.get('/projects')).text()).not.toContain('href="/review"');
+		expect(await (await reviewer.get('/review')).text()).not.toContain(done.reading.id);
+		const html = await (
+			await reviewer.get(`/projects/${quiet.project.slug}/measurements/${id}`)
+		).text();
+		expect(html).not.toContain('?/approve');
 	}, 60_000);
 });
