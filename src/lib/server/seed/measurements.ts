@@ -78,7 +78,7 @@ function filmCases(): DemoCase[] {
 			stokesCounts: 3e5,
 			exposureS: { stokes: 1, antiStokes: 10 },
 			window: { halfRangeCm1: 100, points: 1200 },
-			seed: seed++
+			seed
 		},
 		metadata: { label: 'spreader D1', laser_nm: 633, modes: [1332.5], exposure_anti_stokes_s: 10 }
 	});
