@@ -117,7 +117,8 @@ async function listSeries(): Promise<Item[]> {
 	const items: Item[] = [];
 	let url: string | null = `${base}/api/v1/measurements?series=${run}&limit=500`;
 	while (url) {
-		const r = await fetch(url, { headers: auth });
+		const r = await fetch(url, { headers: auth }).catch(() => null);
+		if (!r) throw new Error(`${base} does not answer; is it still running?`);
 		if (r.status === 429) {
 			await new Promise((res) => setTimeout(res, 1000 * Number(r.headers.get('retry-after') ?? 1)));
 			continue;
