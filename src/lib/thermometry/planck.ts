@@ -1,0 +1,133 @@
+/**
+ * Planck's law, and the relative spectral response it yields from a white-light lamp
+ * (physics.md §1.3b). SI units throughout: wavelength in m, wavenumber in m⁻¹, temperature in K.
+ * Radiances are per steradian; "energy" radiance is in W m⁻² sr⁻¹ per unit of the spectral
+ * variable, "photon" radiance in photons s⁻¹ m⁻² sr⁻¹ per unit of it.
+ *
+ *   L_λ   = 2hc² λ⁻⁵ / (exp(c₂/(λT)) − 1)      L_p,λ = 2c λ⁻⁴ / (exp(c₂/(λT)) − 1)
+ *   L_ν̃   = 2hc² ν̃³  / (exp(c₂ν̃/T) − 1)        L_p,ν̃ = 2c ν̃²  / (exp(c₂ν̃/T) − 1)
+ */
+import { BOLTZMANN_K, PLANCK_H, SPEED_OF_LIGHT_C, laserWavenumber } from './constants';
+import { responseFactor } from './response';
+import { EngineError } from './types';
+
+/** c₂ = hc/k_B in m·K. */
+const C2_M_K = (PLANCK_H * SPEED_OF_LIGHT_C) / BOLTZMANN_K;
+/** 2hc², W m² sr⁻¹. */
+const C1L = 2 * PLANCK_H * SPEED_OF_LIGHT_C * SPEED_OF_LIGHT_C;
+
+function positive(what: string, x: number) {
+	if (!(x > 0) || !Number.isFinite(x)) {
+		throw new EngineError('bad-planck-input', `The ${what} must be a positive number (got ${x}).`);
+	}
+}
+
+/** Energy spectral radiance per unit wavelength, W m⁻² sr⁻¹ m⁻¹. */
+export function radianceEnergyWavelength(lambdaM: number, temperatureK: number): number {
+	positive('wavelength', lambdaM);
+	positive('temperature', temperatureK);
+	// expm1 keeps the long-wavelength (Rayleigh–Jeans) end accurate.
+	return C1L / lambdaM ** 5 / Math.expm1(C2_M_K / (lambdaM * temperatureK));
+}
+
+/** Energy spectral radiance per unit wavenumber, W m⁻² sr⁻¹ (m⁻¹)⁻¹. */
+export function radianceEnergyWavenumber(nuM1: number, temperatureK: number): number {
+	positive('wavenumber', nuM1);
+	positive('temperature', temperatureK);
+	return (C1L * nuM1 ** 3) / Math.expm1((C2_M_K * nuM1) / temperatureK);
+}
+
+/** Photon spectral radiance per unit wavelength, photons s⁻¹ m⁻² sr⁻¹ m⁻¹ (energy ÷ hc/λ). */
+export function radiancePhotonWavelength(lambdaM: number, temperatureK: number): number {
+	positive('wavelength', lambdaM);
+	positive('temperature', temperatureK);
+	return (2 * SPEED_OF_LIGHT_C) / lambdaM ** 4 / Math.expm1(C2_M_K / (lambdaM * temperatureK));
+}
+
+/** Photon spectral radiance per unit wavenumber, photons s⁻¹ m⁻² sr⁻¹ (m⁻¹)⁻¹ (energy ÷ hcν̃). */
+export function radiancePhotonWavenumber(nuM1: number, temperatureK: number): number {
+	positive('wavenumber', nuM1);
+	positive('temperature', temperatureK);
+	return (2 * SPEED_OF_LIGHT_C * nuM1 ** 2) / Math.expm1((C2_M_K * nuM1) / temperatureK);
+}
+
+export interface LampSpectrum {
+	/** Raman shift of each pixel, cm⁻¹, strictly ascending (anti-Stokes side negative). */
+	shift: ArrayLike<number>;
+	/** Lamp counts (or count rate) per pixel, dark-subtracted. */
+	counts: ArrayLike<number>;
+}
+
+export interface ResponseCurve {
+	shift: number[];
+	/** Relative response, counts per incident photon, scaled so that its largest value is 1. */
+	response: number[];
+}
+
+/**
+ * Relative response from a lamp of known colour temperature seen through the instrument:
+ * counts per pixel ÷ (photon radiance per wavenumber × the pixel's width in wavenumber). Photon
+ * units because a CCD counts photons, and the pixel width because a pixel's counts are an
+ * integral over it (pixels uniform in wavelength are not uniform in shift).
+ */
+export function lampResponse(
+	lamp: LampSpectrum,
+	laserNm: number,
+	colourTemperatureK: number
+): ResponseCurve {
+	positive('laser wavelength', laserNm);
+	positive('colour temperature', colourTemperatureK);
+	const n = lamp.shift.length;
+	if (n < 2 || lamp.counts.length !== n) {
+		throw new EngineError(
+			'bad-lamp',
+			'The lamp spectrum needs at least two pixels, each with a shift and a count.'
+		);
+	}
+	const nuL = laserWavenumber(laserNm);
+	const shift: number[] = [];
+	const raw: number[] = [];
+	for (let i = 0; i < n; i++) {
+		if (i > 0 && !(lamp.shift[i] > lamp.shift[i - 1])) {
+			throw new EngineError(
+				'bad-lamp',
+				'The lamp spectrum’s shift axis must be strictly ascending.'
+			);
+		}
+		const absCm1 = nuL - lamp.shift[i];
+		if (!(absCm1 > 0)) {
+			throw new EngineError(
+				'bad-lamp',
+				`A shift of ${lamp.shift[i]} cm⁻¹ lies beyond the laser line.`
+			);
+		}
+		const lo = lamp.shift[Math.max(i - 1, 0)];
+		const hi = lamp.shift[Math.min(i + 1, n - 1)];
+		const widthCm1 = (hi - lo) / (i === 0 || i === n - 1 ? 1 : 2);
+		const photons = radiancePhotonWavenumber(absCm1 * 100, colourTemperatureK) * widthCm1 * 100;
+		shift.push(lamp.shift[i]);
+		raw.push(lamp.counts[i] / photons);
+	}
+	const top = Math.max(...raw);
+	if (!(top > 0)) throw new EngineError('bad-lamp', 'The lamp spectrum has no positive counts.');
+	return { shift, response: raw.map((r) => r / top) };
+}
+
+/**
+ * C = R(−ν̃m) / R(+ν̃m) read off a response curve, with u(C) from the curve's relative
+ * uncertainty; the interpolation is the one every response curve goes through (response.ts).
+ */
+export function responseRatio(
+	curve: ResponseCurve,
+	modeCm1: number,
+	uRelative = 0
+): { c: number; u_c: number } {
+	// Laser and exponent do not enter a curve's C; response.ts takes them for the other kinds.
+	const f = responseFactor(
+		{ kind: 'curve', shift: curve.shift, response: curve.response, u_relative: uRelative },
+		Number.POSITIVE_INFINITY,
+		modeCm1,
+		3
+	);
+	return { c: f.c, u_c: f.u_c };
+}
