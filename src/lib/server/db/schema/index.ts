@@ -3,3 +3,4 @@ export * from './projects';
 export * from './measurements';
 export * from './reviews';
 export * from './instruments';
+export * from './calibrations';

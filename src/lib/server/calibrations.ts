@@ -1,0 +1,259 @@
+import { and, desc, eq } from 'drizzle-orm';
+import { z } from 'zod';
+import { laserWavenumber } from '$lib/thermometry/constants';
+import { responseFactor } from '$lib/thermometry/response';
+import { EngineError } from '$lib/thermometry/types';
+import { recordAudit } from './audit';
+import { db } from './db';
+import {
+	calibrations,
+	instrumentProfiles,
+	instrumentProfileVersions,
+	type CalibrationInputs
+} from './db/schema';
+import { InstrumentError } from './instruments';
+
+/**
+ * Response calibrations of an instrument profile. The numbers come from the engine
+ * (response.ts); this module only checks the inputs, stores the result and audits the change.
+ */
+
+export type Calibration = typeof calibrations.$inferSelect;
+
+const number = (what: string, unit: string) =>
+	z
+		.string()
+		.trim()
+		.min(1, `Enter the ${what} (${unit}).`)
+		.transform(Number)
+		.pipe(z.number({ error: `The ${what} must be a number (${unit}).` }).finite());
+
+const positive = (what: string, unit: string) =>
+	number(what, unit).pipe(z.number().gt(0, `The ${what} must be above zero.`));
+const nonNegative = (what: string, unit: string) =>
+	number(what, unit).pipe(z.number().min(0, `The ${what} cannot be negative.`));
+
+/** A date from `<input type="date">`, or empty for "now" / "no end". */
+const date = z
+	.string()
+	.trim()
+	.default('')
+	.refine((s) => s === '' || !Number.isNaN(Date.parse(s)), 'Enter a date such as 2026-12-31.')
+	.transform((s) => (s === '' ? null : new Date(s)));
+
+const validity = {
+	valid_from: date,
+	valid_until: date,
+	notes: z.string().trim().max(2000, 'At most 2000 characters.').default('')
+};
+
+function checkValidity(
+	v: { valid_from: Date | null; valid_until: Date | null },
+	ctx: z.RefinementCtx
+) {
+	if (v.valid_until && v.valid_until <= (v.valid_from ?? new Date()))
+		ctx.addIssue({
+			code: 'custom',
+			path: ['valid_until'],
+			message: 'The end of validity must come after its start.'
+		});
+}
+
+export const constantForm = z
+	.object({
+		c: positive('response ratio C', 'anti-Stokes over Stokes'),
+		u_c: nonNegative('uncertainty u(C)', 'same units as C'),
+		source: z
+			.string()
+			.trim()
+			.min(1, 'Say where this C comes from, e.g. a vendor certificate.')
+			.max(300, 'At most 300 characters.'),
+		...validity
+	})
+	.superRefine(checkValidity);
+export type ConstantInput = z.infer<typeof constantForm>;
+
+export const referenceForm = z
+	.object({
+		ratio: positive('reference ratio R₀', 'fitted anti-Stokes/Stokes area ratio'),
+		u_ratio: nonNegative('uncertainty u(R₀)', 'same units as R₀'),
+		t0_k: positive('reference temperature T₀', 'K'),
+		u_t0_k: nonNegative('uncertainty u(T₀)', 'K'),
+		mode_cm1: positive('band shift', 'cm⁻¹').pipe(
+			z.number().max(5000, 'A Raman shift of at most 5000 cm⁻¹.')
+		),
+		...validity
+	})
+	.superRefine(checkValidity);
+export type ReferenceInput = z.infer<typeof referenceForm>;
+
+/** The profile with its newest version, inside the caller's transaction; 404 when absent. */
+async function lockProfile(tx: Pick<typeof db, 'select'>, projectId: number, profileId: number) {
+	const [row] = await tx
+		.select({ profile: instrumentProfiles, version: instrumentProfileVersions })
+		.from(instrumentProfiles)
+		.innerJoin(
+			instrumentProfileVersions,
+			eq(instrumentProfileVersions.profileId, instrumentProfiles.id)
+		)
+		.where(and(eq(instrumentProfiles.projectId, projectId), eq(instrumentProfiles.id, profileId)))
+		.orderBy(desc(instrumentProfileVersions.version))
+		.limit(1);
+	if (!row) throw new InstrumentError('profile', 'No such profile in this project.', 404);
+	return row;
+}
+
+export async function listCalibrations(profileId: number): Promise<Calibration[]> {
+	return db
+		.select()
+		.from(calibrations)
+		.where(eq(calibrations.profileId, profileId))
+		.orderBy(desc(calibrations.createdAt), desc(calibrations.id));
+}
+
+async function insertCalibration(
+	projectId: number,
+	profileId: number,
+	userId: string,
+	make: (version: typeof instrumentProfileVersions.$inferSelect) => {
+		c: number;
+		uC: number;
+		inputs: CalibrationInputs;
+	},
+	input: { valid_from: Date | null; valid_until: Date | null; notes: string }
+) {
+	return db.transaction(async (tx) => {
+		const { version } = await lockProfile(tx, projectId, profileId);
+		const made = make(version);
+		const [row] = await tx
+			.insert(calibrations)
+			.values({
+				profileId,
+				profileVersionId: version.id,
+				method: made.inputs.method,
+				c: made.c,
+				uC: made.uC,
+				inputs: made.inputs,
+				validFrom: input.valid_from ?? new Date(),
+				validUntil: input.valid_until,
+				notes: input.notes,
+				createdBy: userId
+			})
+			.returning();
+		await recordAudit(tx, {
+			projectId,
+			actor: { userId },
+			action: 'calibration.create',
+			objectType: 'calibration',
+			objectId: row.id,
+			after: row
+		});
+		return row;
+	});
+}
+
+export function createConstantCalibration(
+	projectId: number,
+	profileId: number,
+	input: ConstantInput,
+	userId: string
+) {
+	return insertCalibration(
+		projectId,
+		profileId,
+		userId,
+		() => {
+			// Through the engine, so a constant is checked exactly as the analysis will check it.
+			const f = responseFactor({ kind: 'constant', c: input.c, u_c: input.u_c }, 1, 0, 3);
+			return { c: f.c, uC: f.u_c, inputs: { method: 'constant', source: input.source } };
+		},
+		input
+	);
+}
+
+/**
+ * A pair measured at a known T₀ fixes C = R₀ρ⁻ⁿe^(c₂ν̃m/T₀) for the profile's laser and
+ * exponent, with u(C) from u(R₀) and u(T₀) (physics.md §1.3a, §2.1).
+ */
+export function createReferenceCalibration(
+	projectId: number,
+	profileId: number,
+	input: ReferenceInput,
+	userId: string
+) {
+	return insertCalibration(
+		projectId,
+		profileId,
+		userId,
+		(version) => {
+			const exponent = version.detector === 'energy' ? 4 : 3;
+			let f;
+			try {
+				f = responseFactor(
+					{
+						kind: 'reference',
+						ratio: input.ratio,
+						u_ratio: input.u_ratio,
+						t0_k: input.t0_k,
+						u_t0_k: input.u_t0_k
+					},
+					laserWavenumber(version.laserNm),
+					input.mode_cm1,
+					exponent
+				);
+			} catch (err) {
+				if (err instanceof EngineError) throw new InstrumentError('mode_cm1', err.message, 400);
+				throw err;
+			}
+			return {
+				c: f.c,
+				uC: f.u_c,
+				inputs: {
+					method: 'reference-run',
+					ratio: input.ratio,
+					uRatio: input.u_ratio,
+					t0K: input.t0_k,
+					uT0K: input.u_t0_k,
+					modeCm1: input.mode_cm1,
+					laserNm: version.laserNm,
+					exponent
+				}
+			};
+		},
+		input
+	);
+}
+
+/** Retire a calibration: it stays listed (readings may name it) but is no longer offered. */
+export async function retireCalibration(
+	projectId: number,
+	profileId: number,
+	calibrationId: number,
+	userId: string
+) {
+	return db.transaction(async (tx) => {
+		await lockProfile(tx, projectId, profileId);
+		const [before] = await tx
+			.select()
+			.from(calibrations)
+			.where(and(eq(calibrations.id, calibrationId), eq(calibrations.profileId, profileId)))
+			.for('update');
+		if (!before) throw new InstrumentError('calibration', 'No such calibration.', 404);
+		if (before.status === 'retired') return before;
+		const [after] = await tx
+			.update(calibrations)
+			.set({ status: 'retired' })
+			.where(eq(calibrations.id, calibrationId))
+			.returning();
+		await recordAudit(tx, {
+			projectId,
+			actor: { userId },
+			action: 'calibration.retire',
+			objectType: 'calibration',
+			objectId: calibrationId,
+			before,
+			after
+		});
+		return after;
+	});
+}

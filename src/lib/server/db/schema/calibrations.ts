@@ -1,0 +1,62 @@
+import {
+	doublePrecision,
+	index,
+	integer,
+	jsonb,
+	pgTable,
+	text,
+	timestamp
+} from 'drizzle-orm/pg-core';
+import { users } from './auth';
+import { timestamps } from './columns';
+import { instrumentProfiles, instrumentProfileVersions } from './instruments';
+
+/** What a calibration was made from, kept so its C can be recomputed and its budget shown. */
+export type CalibrationInputs =
+	| { method: 'constant'; source: string }
+	| {
+			method: 'reference-run';
+			/** Fitted anti-Stokes/Stokes area ratio R₀ of the reference pair, with its u. */
+			ratio: number;
+			uRatio: number;
+			/** Stage or thermocouple temperature T₀ and its u, K. */
+			t0K: number;
+			uT0K: number;
+			/** The band the pair was measured on, cm⁻¹: C holds for this band only. */
+			modeCm1: number;
+			laserNm: number;
+			exponent: 3 | 4;
+	  }
+	| { method: 'response-curve'; uRelative: number; points: number }
+	| { method: 'lamp'; laserNm: number; colourTemperatureK: number };
+
+export const CALIBRATION_METHODS = ['constant', 'reference-run', 'response-curve', 'lamp'] as const;
+
+/** A response calibration of an instrument profile: the ratio C ± u and how it was obtained. */
+export const calibrations = pgTable(
+	'calibrations',
+	{
+		id: integer().primaryKey().generatedAlwaysAsIdentity(),
+		profileId: integer()
+			.notNull()
+			.references(() => instrumentProfiles.id, { onDelete: 'cascade' }),
+		/** The profile version it was made with (its laser and detector), when known. */
+		profileVersionId: integer().references(() => instrumentProfileVersions.id, {
+			onDelete: 'set null'
+		}),
+		method: text({ enum: CALIBRATION_METHODS }).notNull(),
+		c: doublePrecision().notNull(),
+		uC: doublePrecision().notNull(),
+		inputs: jsonb().$type<CalibrationInputs>().notNull(),
+		validFrom: timestamp({ withTimezone: true }).notNull().defaultNow(),
+		/** After this the calibration still applies but readings carry a warning; null: no end. */
+		validUntil: timestamp({ withTimezone: true }),
+		status: text({ enum: ['active', 'retired'] })
+			.notNull()
+			.default('active'),
+		notes: text().notNull().default(''),
+		createdBy: text().references(() => users.id, { onDelete: 'set null' }),
+		...timestamps
+	},
+	(t) => [index().on(t.profileId, t.status)]
+);
