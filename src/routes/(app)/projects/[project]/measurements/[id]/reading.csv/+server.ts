@@ -1,7 +1,7 @@
 import { error } from '@sveltejs/kit';
 import Papa from 'papaparse';
 import { requireProject } from '$lib/server/access';
-import { CSV_COLUMNS } from '$lib/server/measurements/export';
+import { CSV_COLUMNS, csvRow } from '$lib/server/measurements/export';
 import type { BudgetRow, Reading } from '$lib/thermometry/types';
 import { measurementWithReading } from '../reading.server';
 import type { RequestHandler } from './$types';
@@ -30,31 +30,7 @@ export const GET: RequestHandler = async (event) => {
 	);
 	if (!reading) error(404, 'This measurement has no reading yet.');
 	const r = reading.result as unknown as Reading;
-	const row: Record<(typeof CSV_COLUMNS)[number], unknown> = {
-		measurement_id: m.id,
-		reading_id: reading.id,
-		uploaded_at: m.createdAt.toISOString(),
-		label: m.label ?? '',
-		batch: m.batch ?? '',
-		series: m.series ?? '',
-		x: m.x ?? '',
-		y: m.y ?? '',
-		laser_power_mw: m.laserPowerMw ?? '',
-		acquired_at: m.acquiredAt?.toISOString() ?? '',
-		status: m.status,
-		temperature_k: reading.temperatureK ?? '',
-		u_temperature_k: reading.uTemperatureK ?? '',
-		expanded_uncertainty_k: reading.expandedUncertaintyK ?? '',
-		coverage_factor: reading.coverageFactor,
-		method: r.method ?? '',
-		exponent: r.exponent ?? '',
-		lineshape: r.lineshape ?? '',
-		flags: reading.flagCodes.join(' ')
-	};
-	const summary = Papa.unparse({
-		fields: [...CSV_COLUMNS],
-		data: [CSV_COLUMNS.map((c) => row[c])]
-	});
+	const summary = Papa.unparse({ fields: [...CSV_COLUMNS], data: [csvRow(m, reading)] });
 	const budget = Papa.unparse({
 		fields: [...BUDGET_COLUMNS],
 		data: (r.budget ?? []).map((b: BudgetRow) => BUDGET_COLUMNS.map((c) => b[c]))
