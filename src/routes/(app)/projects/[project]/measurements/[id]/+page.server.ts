@@ -2,6 +2,7 @@ import { error, fail, redirect } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { requireProject } from '$lib/server/access';
+import { measurementAudit } from '$lib/server/audit-trail';
 import { db } from '$lib/server/db';
 import { acquisitionTokens, users } from '$lib/server/db/schema';
 import { fieldFailure, parseForm } from '$lib/server/forms';
@@ -19,10 +20,11 @@ export const load: PageServerLoad = async (event) => {
 	const id = event.params.id;
 	const found = await measurementWithReading(project.id, id, event.url.searchParams.get('reading'));
 	const { measurement: m, reading } = found;
-	const [history, uploader, decisions] = await Promise.all([
+	const [history, uploader, decisions, audit] = await Promise.all([
 		readingHistory(id),
 		uploadedBy(m),
-		reading ? decisionsFor(reading.id) : []
+		reading ? decisionsFor(reading.id) : [],
+		measurementAudit(project.id, m.id)
 	]);
 	return {
 		measurement: {
@@ -58,6 +60,7 @@ export const load: PageServerLoad = async (event) => {
 				}
 			: null,
 		history,
+		audit,
 		signOff: { required: project.signOffRequired, decisions }
 	};
 };

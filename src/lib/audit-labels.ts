@@ -1,0 +1,30 @@
+/** Plain words for the audit log's action codes; an unknown code is shown as it is. */
+export const ACTION_LABELS: Record<string, string> = {
+	'project.create': 'created the project',
+	'project.settings': 'changed the project settings',
+	'member.invite': 'invited a member',
+	'member.join': 'joined the project',
+	'member.role': 'changed a role',
+	'member.remove': 'removed a member',
+	'token.create': 'created an acquisition token',
+	'token.revoke': 'revoked an acquisition token',
+	'measurement.upload': 'uploaded a measurement',
+	'measurement.reanalyse': 'requested a re-analysis',
+	'reading.create': 'reading fitted',
+	'reading.approve': 'approved a reading',
+	'reading.return': 'returned a reading',
+	'instrument.create': 'added an instrument profile',
+	'instrument.version': 'edited an instrument profile',
+	'material.create': 'added a material'
+};
+
+export const actionLabel = (action: string) => ACTION_LABELS[action] ?? action;
+
+/** A JSON value on one line, long strings and arrays shortened, for a compact before/after. */
+export function compactJson(value: unknown, max = 240): string {
+	if (value == null) return '';
+	const text = JSON.stringify(value, (_k, v) =>
+		typeof v === 'string' && v.length > 80 ? `${v.slice(0, 77)}…` : v
+	);
+	return text.length > max ? `${text.slice(0, max - 1)}…` : text;
+}
