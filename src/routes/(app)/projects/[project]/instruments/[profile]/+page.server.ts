@@ -1,23 +1,20 @@
 import { error, fail, redirect } from '@sveltejs/kit';
 import { requireProject } from '$lib/server/access';
+import { listCalibrations } from '$lib/server/calibrations';
 import { parseForm } from '$lib/server/forms';
 import { editProfile, InstrumentError, profileForm, profileOf } from '$lib/server/instruments';
+import { calibrationActions, profileId } from './calibration-actions';
 import type { Actions, PageServerLoad } from './$types';
-
-function profileId(raw: string): number {
-	const id = Number(raw);
-	if (!Number.isSafeInteger(id) || id <= 0) error(404, 'Not found');
-	return id;
-}
 
 export const load: PageServerLoad = async (event) => {
 	const { project } = await requireProject(event, 'read');
 	const found = await profileOf(project.id, profileId(event.params.profile));
 	if (!found) error(404, 'Not found');
-	return found;
+	return { ...found, calibrations: await listCalibrations(found.profile.id) };
 };
 
 export const actions: Actions = {
+	...calibrationActions,
 	edit: async (event) => {
 		const { project, user } = await requireProject(event, 'upload');
 		const id = profileId(event.params.profile);

@@ -1,0 +1,220 @@
+// Response calibrations on an instrument profile over HTTP, as a browser without JavaScript sends
+// them: who may add and retire one, that bad input comes back beside its field, and that a
+// reference-temperature run stores the C that gives its own T₀ back and a later pair's T₁.
+import { and, asc, eq } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ROLES, type Role } from '../src/lib/roles';
+import { closeDb, db } from '../src/lib/server/db';
+import { auditLog } from '../src/lib/server/db/schema';
+import { laserWavenumber } from '../src/lib/thermometry/constants';
+import { trueAreas, type SyntheticSpec } from '../src/lib/thermometry/synthetic';
+import {
+	sensitivities,
+	temperatureFromRatio,
+	temperatureFromReference
+} from '../src/lib/thermometry/temperature';
+import { Session, signIn } from './support/http';
+import { makeWorld, PASSWORD, type World } from './support/world';
+
+let world: World;
+const sessions = {} as Record<Role | 'outsider', Session>;
+let base: string;
+
+const LASER_NM = 532.1;
+const SI = 520.7;
+
+async function makeProfile(name: string, detector: 'photon-counting' | 'energy') {
+	const created = await sessions.analyst.post(`${base}/instruments?/create`, {
+		name,
+		laser_nm: String(LASER_NM),
+		detector,
+		filter_cutoff_cm1: '90',
+		optics_notes: '',
+		notes: ''
+	});
+	expect(created.status).toBe(303);
+	return created.headers.get('location')!;
+}
+
+interface Row {
+	id: number;
+	c: number;
+	uC: number;
+	status: string;
+}
+
+/** The calibration rows of a profile page, with C and u(C) at full precision. */
+async function rows(path: string): Promise<Row[]> {
+	const html = await (await sessions.viewer.get(path)).text();
+	return [
+		...html.matchAll(
+			/id="calibration-(\d+)" data-c="([^"]+)" data-u-c="([^"]+)" data-status="([^"]+)"/g
+		)
+	].map((m) => ({ id: Number(m[1]), c: Number(m[2]), uC: Number(m[3]), status: m[4] }));
+}
+
+/** A pair's true area ratio at temperature t (physics.md §1.3a: the "pair made at T₀"). */
+const ratioAt = (t: number, exponent: 3 | 4, c = 0.87) =>
+	trueAreas({
+		laserNm: LASER_NM,
+		modeCm1: SI,
+		temperatureK: t,
+		exponent,
+		c,
+		lineshape: 'lorentzian',
+		fwhmCm1: 3.5,
+		stokesCounts: 1e5
+	} satisfies SyntheticSpec).ratio;
+
+let photonPath: string;
+let energyPath: string;
+
+beforeAll(async () => {
+	world = await makeWorld('calib');
+	base = `/projects/${world.project.slug}`;
+	for (const who of [...ROLES, 'outsider'] as const) {
+		sessions[who] = await signIn(world.people[who].email, PASSWORD);
+	}
+	photonPath = await makeProfile('CCD 532', 'photon-counting');
+	energyPath = await makeProfile('Power meter 532', 'energy');
+});
+afterAll(closeDb);
+
+describe('who may calibrate', () => {
+	const constant = { c: '0.93', u_c: '0.02', source: 'vendor certificate' };
+
+	it('refuses a viewer (403) and a non-member (404), and stores nothing', async () => {
+		expect((await sessions.viewer.post(`${photonPath}?/addConstant`, constant)).status).toBe(403);
+		expect((await sessions.viewer.post(`${photonPath}?/addReference`, {})).status).toBe(403);
+		expect((await sessions.outsider.post(`${photonPath}?/addConstant`, constant)).status).toBe(404);
+		expect((await sessions.outsider.get(photonPath)).status).toBe(404);
+		expect(await rows(photonPath)).toEqual([]);
+	});
+
+	it('lets an analyst add a constant and every member read it; a viewer cannot retire it', async () => {
+		const added = await sessions.analyst.post(`${photonPath}?/addConstant`, constant);
+		expect(added.status).toBe(303);
+		const [row] = await rows(photonPath);
+		expect(row).toMatchObject({ c: 0.93, uC: 0.02, status: 'active' });
+		for (const who of ROLES) expect((await sessions[who].get(photonPath)).status, who).toBe(200);
+		const page = await (await sessions.viewer.get(photonPath)).text();
+		expect(page).toContain('0.930 ± 0.020');
+		expect(page).toContain('vendor certificate');
+		expect(page).not.toContain('?/retire');
+
+		const refused = await sessions.viewer.post(`${photonPath}?/retire`, { id: String(row.id) });
+		expect(refused.status).toBe(403);
+		expect((await rows(photonPath))[0].status).toBe('active');
+
+		const retired = await sessions.owner.post(`${photonPath}?/retire`, { id: String(row.id) });
+		expect(retired.status).toBe(303);
+		expect((await rows(photonPath))[0].status).toBe('retired');
+		// A calibration of another profile is not found through this one.
+		expect(
+			(await sessions.owner.post(`${energyPath}?/retire`, { id: String(row.id) })).status
+		).toBe(404);
+
+		const audit = await db
+			.select()
+			.from(auditLog)
+			.where(and(eq(auditLog.projectId, world.project.id), eq(auditLog.objectType, 'calibration')))
+			.orderBy(asc(auditLog.id));
+		expect(audit.map((a) => a.action)).toEqual(['calibration.create', 'calibration.retire']);
+		expect(audit[1].actorUserId).toBe(world.people.owner.id);
+	});
+
+	it('returns bad input beside its field and stores nothing', async () => {
+		const before = (await rows(photonPath)).length;
+		const bad = await sessions.analyst.post(`${photonPath}?/addReference`, {
+			ratio: '-1',
+			u_ratio: '0.001',
+			t0_k: 'warm',
+			u_t0_k: '0.2',
+			mode_cm1: SI.toString(),
+			valid_from: '2026-12-01',
+			valid_until: '2026-01-01'
+		});
+		expect(bad.status).toBe(400);
+		const page = await bad.text();
+		expect(page).toContain('The reference ratio R₀ must be above zero.');
+		expect(page).toContain('The reference temperature T₀ must be a number (K).');
+		// The dates are checked once the numbers are right.
+		const dates = await sessions.analyst.post(`${photonPath}?/addConstant`, {
+			c: '0.9',
+			u_c: '0.01',
+			source: 'vendor',
+			valid_from: '2026-12-01',
+			valid_until: '2026-01-01'
+		});
+		expect(dates.status).toBe(400);
+		expect(await dates.text()).toContain('The end of validity must come after its start.');
+		expect((await rows(photonPath)).length).toBe(before);
+	});
+});
+
+describe('reference-temperature run round trip (physics.md §1.3a)', () => {
+	const t0 = 295.15;
+	const uT0 = 0.2;
+
+	it('stores the C that gives T₀ back and a second pair at T₁ within its u', async () => {
+		const r0 = ratioAt(t0, 3);
+		const uR0 = 0.005 * r0;
+		const added = await sessions.analyst.post(`${photonPath}?/addReference`, {
+			ratio: String(r0),
+			u_ratio: String(uR0),
+			t0_k: String(t0),
+			u_t0_k: String(uT0),
+			mode_cm1: String(SI)
+		});
+		expect(added.status).toBe(303);
+		const [cal] = await rows(photonPath);
+		expect(cal.status).toBe('active');
+		// The pair was made with C = 0.87: the calibration finds it again.
+		expect(cal.c).toBeCloseTo(0.87, 10);
+		// u(C)/C = √((u(R₀)/R₀)² + (c₂ν̃m/T₀ · u(T₀)/T₀)²) (physics.md §2.1 applied to ln C).
+		const x = (1.4387768775039338 * SI) / t0;
+		expect(cal.uC / cal.c).toBeCloseTo(Math.hypot(0.005, (x * uT0) / t0), 10);
+
+		const model = {
+			laserCm1: laserWavenumber(LASER_NM),
+			modeCm1: SI,
+			exponent: 3 as const,
+			c: cal.c
+		};
+		expect(temperatureFromRatio(r0, model)).toBeCloseTo(t0, 8);
+
+		const t1 = 412.6;
+		const r1 = ratioAt(t1, 3);
+		const back = temperatureFromRatio(r1, model);
+		// u(T₁) from u(C) alone: |∂T/∂C|·u(C) (physics.md §2.1).
+		const uT1 = Math.abs(sensitivities(back, r1, model).c) * cal.uC;
+		expect(uT1).toBeGreaterThan(0.3);
+		expect(Math.abs(back - t1)).toBeLessThan(uT1);
+		expect(back).toBeCloseTo(t1, 6);
+		// And the reference form, which never sees C, agrees.
+		expect(temperatureFromReference(r1, r0, t0, SI)).toBeCloseTo(back, 8);
+	});
+
+	it("uses the profile's exponent: an energy detector stores C for n = 4, and T₁ comes out the same", async () => {
+		const r0 = ratioAt(t0, 4);
+		const added = await sessions.analyst.post(`${energyPath}?/addReference`, {
+			ratio: String(r0),
+			u_ratio: String(0.005 * r0),
+			t0_k: String(t0),
+			u_t0_k: String(uT0),
+			mode_cm1: String(SI)
+		});
+		expect(added.status).toBe(303);
+		const page = await (await sessions.viewer.get(energyPath)).text();
+		expect(page).toContain('n = 4');
+		const [cal] = await rows(energyPath);
+		expect(cal.c).toBeCloseTo(0.87, 10);
+		const model = {
+			laserCm1: laserWavenumber(LASER_NM),
+			modeCm1: SI,
+			exponent: 4 as const,
+			c: cal.c
+		};
+		expect(temperatureFromRatio(ratioAt(388, 4), model)).toBeCloseTo(388, 6);
+	});
+});
