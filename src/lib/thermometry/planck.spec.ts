@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { BOLTZMANN_K, PLANCK_H, SPEED_OF_LIGHT_C, laserWavenumber } from './constants';
 import {
+	lampCalibration,
 	lampResponse,
 	radianceEnergyWavelength,
 	radianceEnergyWavenumber,
@@ -153,5 +154,35 @@ describe('lamp response', () => {
 
 	it('refuses an axis that is not ascending', () => {
 		expect(() => lampResponse({ shift: [1, 0], counts: [1, 1] }, 532, 2856)).toThrow(EngineError);
+	});
+});
+
+describe('lamp calibration budget', () => {
+	it('carries u(T_c) into u(C) with the derivative of the Planck ratio', () => {
+		// Source: physics.md §2.1 (GUM law of propagation) applied to C(T_c); checked by central difference.
+		const laserNm = 532;
+		const nuL = laserWavenumber(laserNm);
+		// Pixels 3 cm⁻¹ wide, so counts ∝ photon radiance: a flat response (C = 1) at 3000 K.
+		const axis = Array.from({ length: 601 }, (_, i) => -900 + 3 * i);
+		const counts = axis.map((s) => radiancePhotonWavenumber((nuL - s) * 100, 3000));
+		const lamp = { shift: axis, counts };
+		const at = (tc: number) => responseRatio(lampResponse(lamp, laserNm, tc), 520.7).c;
+		const cal = lampCalibration({
+			lamp,
+			laserNm,
+			colourTemperatureK: 2856,
+			uColourTemperatureK: 50,
+			modeCm1: 520.7,
+			uRelative: 0.005
+		});
+		const numeric = Math.abs((at(2857) - at(2855)) / 2) * 50;
+		expect(rel(cal.budget.colourTemperature, numeric)).toBeLessThan(1e-3);
+		expect(rel(cal.budget.curve, cal.c * Math.SQRT2 * 0.005)).toBeLessThan(1e-12);
+		expect(rel(cal.u_c, Math.hypot(cal.budget.curve, cal.budget.colourTemperature))).toBeLessThan(
+			1e-12
+		);
+		// Lamp really at 3000 K read as 2856 K: C is off by the Planck ratio, not 1.
+		expect(cal.c).not.toBeCloseTo(1, 2);
+		expect(at(3000)).toBeCloseTo(1, 3);
 	});
 });

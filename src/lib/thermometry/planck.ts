@@ -131,3 +131,46 @@ export function responseRatio(
 	);
 	return { c: f.c, u_c: f.u_c };
 }
+
+export interface LampCalibrationInput {
+	lamp: LampSpectrum;
+	laserNm: number;
+	colourTemperatureK: number;
+	/** Standard uncertainty of the colour temperature, K (a nominal lamp: tens of kelvin). */
+	uColourTemperatureK: number;
+	modeCm1: number;
+	/** Relative standard uncertainty of each response value (lamp noise, flat-field), e.g. 0.01. */
+	uRelative: number;
+}
+
+export interface LampCalibration {
+	curve: ResponseCurve;
+	c: number;
+	u_c: number;
+	/** Contributions to u(C): from the curve's own scatter and from u(T_c). */
+	budget: { curve: number; colourTemperature: number };
+}
+
+/**
+ * C from a lamp, with u(C) from the curve and from the colour temperature. C divides by the
+ * photon radiance at ν̃L+ν̃m and multiplies by it at ν̃L−ν̃m, so with x = c₂ν̃/T_c and
+ * ∂ln L_p,ν̃/∂T_c = (x/T_c)·eˣ/(eˣ−1):  ∂ln C/∂T_c = ∂ln L_p(ν̃S)/∂T_c − ∂ln L_p(ν̃AS)/∂T_c.
+ */
+export function lampCalibration(input: LampCalibrationInput): LampCalibration {
+	const curve = lampResponse(input.lamp, input.laserNm, input.colourTemperatureK);
+	const { c, u_c } = responseRatio(curve, input.modeCm1, input.uRelative);
+	const t = input.colourTemperatureK;
+	const nuL = laserWavenumber(input.laserNm) * 100;
+	const dLn = (nuM1: number) => {
+		const x = (C2_M_K * nuM1) / t;
+		return (x / t) * (1 / -Math.expm1(-x));
+	};
+	const dLnC = dLn(nuL - input.modeCm1 * 100) - dLn(nuL + input.modeCm1 * 100);
+	const fromT = Math.abs(c * dLnC) * input.uColourTemperatureK;
+	return {
+		curve,
+		c,
+		u_c: Math.hypot(u_c, fromT),
+		budget: { curve: u_c, colourTemperature: fromT }
+	};
+}
