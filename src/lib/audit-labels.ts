@@ -20,11 +20,17 @@ export const ACTION_LABELS: Record<string, string> = {
 
 export const actionLabel = (action: string) => ACTION_LABELS[action] ?? action;
 
-/** A JSON value on one line, long strings and arrays shortened, for a compact before/after. */
-export function compactJson(value: unknown, max = 240): string {
+/**
+ * A JSON value on one line for a compact before/after: hashes and ids cut to their first
+ * characters, fractions to six significant digits, the whole to `max` characters.
+ */
+export function compactJson(value: unknown, max = 160): string {
 	if (value == null) return '';
-	const text = JSON.stringify(value, (_k, v) =>
-		typeof v === 'string' && v.length > 80 ? `${v.slice(0, 77)}…` : v
-	);
+	const text = JSON.stringify(value, (_k, v) => {
+		if (typeof v === 'string' && /^[0-9a-f-]{32,}$/i.test(v)) return `${v.slice(0, 8)}…`;
+		if (typeof v === 'string' && v.length > 60) return `${v.slice(0, 57)}…`;
+		if (typeof v === 'number' && !Number.isInteger(v)) return Number(v.toPrecision(6));
+		return v;
+	});
 	return text.length > max ? `${text.slice(0, max - 1)}…` : text;
 }

@@ -52,7 +52,7 @@ function actorLabel(
 			name: names.userName ?? names.userEmail ?? 'a deleted account',
 			email: names.userEmail
 		};
-	return { kind: 'system' as const, name: 'Phonotherm' };
+	return { kind: 'system' as const, name: 'system' };
 }
 
 function conditions(projectId: number, f: AuditFilter): SQL[] {
