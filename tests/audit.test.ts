@@ -203,6 +203,30 @@ describe('the audit trail page', () => {
 		expect(await get(`from=${today}&to=${today}`)).toContain('>measurement.upload<');
 	});
 
+	it('pages on the server, fifty entries a page, newest first', async () => {
+		// Padding entries of this throwaway project only, so that there is a second page.
+		await db.insert(auditLog).values(
+			Array.from({ length: 55 }, (_, i) => ({
+				projectId: world.project.id,
+				action: 'test.padding',
+				objectType: 'test',
+				objectId: String(i)
+			}))
+		);
+		const get = async (q: string) => (await s.reviewer.get(`${base()}/audit?${q}`)).text();
+		const first = await get('action=test.padding');
+		expect(table(first).match(/<tr/g)).toHaveLength(51);
+		expect(first).toContain('rel="next"');
+		expect(first).not.toContain('rel="prev"');
+		expect(table(first)).toContain('>54<');
+		const second = await get('action=test.padding&page=2');
+		expect(table(second).match(/<tr/g)).toHaveLength(6);
+		expect(table(second)).toContain('>0<');
+		expect(second).toContain('rel="prev"');
+		expect(second).not.toContain('rel="next"');
+		expect(second).toContain('of <span class="num">55</span>');
+	});
+
 	it('has no way to change an entry: posting to it is refused', async () => {
 		const response = await s.owner.post(`${base()}/audit`, {});
 		expect(response.status).toBeGreaterThanOrEqual(400);

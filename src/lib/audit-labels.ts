@@ -15,7 +15,9 @@ export const ACTION_LABELS: Record<string, string> = {
 	'reading.return': 'returned a reading',
 	'instrument.create': 'added an instrument profile',
 	'instrument.version': 'edited an instrument profile',
-	'material.create': 'added a material'
+	'material.create': 'added a material',
+	'calibration.create': 'added a response calibration',
+	'calibration.retire': 'retired a response calibration'
 };
 
 export const actionLabel = (action: string) => ACTION_LABELS[action] ?? action;
