@@ -7,13 +7,18 @@ import { ROLES, type Role } from '../src/lib/roles';
 import { closeDb, db } from '../src/lib/server/db';
 import { auditLog } from '../src/lib/server/db/schema';
 import { laserWavenumber } from '../src/lib/thermometry/constants';
-import { trueAreas, type SyntheticSpec } from '../src/lib/thermometry/synthetic';
+import { lampCalibration, radiancePhotonWavenumber } from '../src/lib/thermometry/planck';
+import {
+	trueAreas,
+	wavelengthUniformAxis,
+	type SyntheticSpec
+} from '../src/lib/thermometry/synthetic';
 import {
 	sensitivities,
 	temperatureFromRatio,
 	temperatureFromReference
 } from '../src/lib/thermometry/temperature';
-import { Session, signIn } from './support/http';
+import { APP_URL, Session, signIn } from './support/http';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -216,5 +221,93 @@ describe('reference-temperature run round trip (physics.md §1.3a)', () => {
 			c: cal.c
 		};
 		expect(temperatureFromRatio(ratioAt(388, 4), model)).toBeCloseTo(388, 6);
+	});
+});
+
+/** Submit a form with a file, the way a browser does (multipart). */
+async function postFile(
+	session: Session,
+	path: string,
+	fields: Record<string, string>,
+	file: { name: string; text: string }
+) {
+	const body = new FormData();
+	for (const [k, v] of Object.entries(fields)) body.set(k, v);
+	body.set('lamp', new File([file.text], file.name, { type: 'text/csv' }));
+	const response = await fetch(APP_URL + path, {
+		method: 'POST',
+		headers: { cookie: session.header(), origin: APP_URL, accept: 'text/html' },
+		body,
+		redirect: 'manual'
+	});
+	session.take(response);
+	return response;
+}
+
+describe('white-light lamp calibration (physics.md §1.3b)', () => {
+	// An invented instrument whose response falls towards the red, seen with a 2856 K lamp.
+	const truth = (shift: number) => 0.6 + 0.3 * Math.cos((shift + 200) / 900) - 1e-4 * shift;
+	const axis = wavelengthUniformAxis(LASER_NM, -1000, 1000, 900);
+	const nuL = laserWavenumber(LASER_NM);
+	const counts = Array.from(axis, (s, i) => {
+		const w =
+			(axis[Math.min(i + 1, 899)] - axis[Math.max(i - 1, 0)]) / (i === 0 || i === 899 ? 1 : 2);
+		return 1e-13 * truth(s) * radiancePhotonWavenumber((nuL - s) * 100, 2856) * w * 100;
+	});
+	const text =
+		'shift,counts\n' +
+		Array.from(axis, (s, i) => `${s.toPrecision(12)},${counts[i].toPrecision(12)}`).join('\n');
+	const fields = {
+		axis: 'raman-shift',
+		colour_temperature_k: '2856',
+		u_colour_temperature_k: '30',
+		u_percent: '0.5',
+		mode_cm1: String(SI)
+	};
+
+	it('stores the response ratio the lamp was seen through, with u from the curve and T_c', async () => {
+		expect(
+			(
+				await postFile(sessions.viewer, `${photonPath}?/addLamp`, fields, {
+					name: 'lamp.csv',
+					text
+				})
+			).status
+		).toBe(403);
+		const added = await postFile(sessions.analyst, `${photonPath}?/addLamp`, fields, {
+			name: 'lamp.csv',
+			text
+		});
+		expect(added.status).toBe(303);
+		const [cal] = await rows(photonPath);
+		expect(cal.c).toBeCloseTo(truth(-SI) / truth(SI), 4);
+		const expected = lampCalibration({
+			lamp: { shift: axis, counts },
+			laserNm: LASER_NM,
+			colourTemperatureK: 2856,
+			uColourTemperatureK: 30,
+			modeCm1: SI,
+			uRelative: 0.005
+		});
+		expect(cal.uC).toBeCloseTo(expected.u_c, 8);
+		expect(cal.uC).toBeGreaterThan(expected.budget.curve);
+		expect(await (await sessions.viewer.get(photonPath)).text()).toContain(
+			'lamp.csv: lamp at 2856'
+		);
+	});
+
+	it('refuses a missing file and an unreadable one beside the file field', async () => {
+		const empty = await postFile(sessions.analyst, `${photonPath}?/addLamp`, fields, {
+			name: 'empty.csv',
+			text: ''
+		});
+		expect(empty.status).toBe(400);
+		expect(await empty.text()).toContain('Choose the lamp spectrum file');
+		const junk = await postFile(sessions.analyst, `${photonPath}?/addLamp`, fields, {
+			name: 'junk.csv',
+			text: 'no numbers here\nat all\n'
+		});
+		expect(junk.status).toBe(400);
+		expect(await junk.text()).toContain('junk.csv');
 	});
 });

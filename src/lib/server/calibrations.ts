@@ -1,6 +1,9 @@
 import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { toRamanShift } from '$lib/thermometry/axis';
 import { laserWavenumber } from '$lib/thermometry/constants';
+import { parseSpectrum } from '$lib/thermometry/parse';
+import { lampCalibration } from '$lib/thermometry/planck';
 import { responseFactor } from '$lib/thermometry/response';
 import { EngineError } from '$lib/thermometry/types';
 import { recordAudit } from './audit';
@@ -86,6 +89,30 @@ export const referenceForm = z
 	})
 	.superRefine(checkValidity);
 export type ReferenceInput = z.infer<typeof referenceForm>;
+
+export const lampForm = z
+	.object({
+		colour_temperature_k: positive('colour temperature', 'K').pipe(
+			z
+				.number()
+				.min(1000, 'A lamp between 1000 and 4000 K.')
+				.max(4000, 'A lamp between 1000 and 4000 K.')
+		),
+		u_colour_temperature_k: nonNegative('uncertainty u(T_c)', 'K'),
+		u_percent: nonNegative('relative uncertainty of the response', '%').pipe(
+			z.number().max(50, 'At most 50 %.')
+		),
+		mode_cm1: positive('band shift', 'cm⁻¹').pipe(
+			z.number().max(5000, 'A Raman shift of at most 5000 cm⁻¹.')
+		),
+		axis: z.enum(['raman-shift', 'wavelength'], 'Choose the unit of the file’s first column.'),
+		...validity
+	})
+	.superRefine(checkValidity);
+export type LampInput = z.infer<typeof lampForm>;
+
+/** The largest lamp file accepted, bytes. */
+export const MAX_LAMP_BYTES = 5 * 1024 * 1024;
 
 /** The profile with its newest version, inside the caller's transaction; 404 when absent. */
 async function lockProfile(tx: Pick<typeof db, 'select'>, projectId: number, profileId: number) {
@@ -219,6 +246,56 @@ export function createReferenceCalibration(
 					exponent
 				}
 			};
+		},
+		input
+	);
+}
+
+/**
+ * A lamp spectrum seen through the profile's optics, with the lamp's colour temperature, gives
+ * the relative response via Planck's law in photon units, and C at the band (physics.md §1.3b).
+ */
+export function createLampCalibration(
+	projectId: number,
+	profileId: number,
+	input: LampInput,
+	lamp: { name: string; text: string },
+	userId: string
+) {
+	return insertCalibration(
+		projectId,
+		profileId,
+		userId,
+		(version) => {
+			try {
+				const parsed = parseSpectrum(lamp);
+				const cal = lampCalibration({
+					lamp: { shift: toRamanShift(parsed.x, input.axis, version.laserNm), counts: parsed.y },
+					laserNm: version.laserNm,
+					colourTemperatureK: input.colour_temperature_k,
+					uColourTemperatureK: input.u_colour_temperature_k,
+					modeCm1: input.mode_cm1,
+					uRelative: input.u_percent / 100
+				});
+				return {
+					c: cal.c,
+					uC: cal.u_c,
+					inputs: {
+						method: 'lamp',
+						laserNm: version.laserNm,
+						colourTemperatureK: input.colour_temperature_k,
+						uColourTemperatureK: input.u_colour_temperature_k,
+						modeCm1: input.mode_cm1,
+						uRelative: input.u_percent / 100,
+						file: lamp.name,
+						points: parsed.x.length,
+						budget: cal.budget
+					}
+				};
+			} catch (err) {
+				if (err instanceof EngineError) throw new InstrumentError('lamp', err.message, 400);
+				throw err;
+			}
 		},
 		input
 	);

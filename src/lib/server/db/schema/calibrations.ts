@@ -28,7 +28,19 @@ export type CalibrationInputs =
 			exponent: 3 | 4;
 	  }
 	| { method: 'response-curve'; uRelative: number; points: number }
-	| { method: 'lamp'; laserNm: number; colourTemperatureK: number };
+	| {
+			method: 'lamp';
+			laserNm: number;
+			colourTemperatureK: number;
+			uColourTemperatureK: number;
+			/** The band C was read at, cm⁻¹, and the lamp file it was read from. */
+			modeCm1: number;
+			uRelative: number;
+			file: string;
+			points: number;
+			/** Contributions to u(C): the curve's scatter and u(T_c). */
+			budget: { curve: number; colourTemperature: number };
+	  };
 
 export const CALIBRATION_METHODS = ['constant', 'reference-run', 'response-curve', 'lamp'] as const;
 

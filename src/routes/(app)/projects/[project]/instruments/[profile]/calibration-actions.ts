@@ -3,6 +3,9 @@ import { requireProject } from '$lib/server/access';
 import {
 	constantForm,
 	createConstantCalibration,
+	createLampCalibration,
+	lampForm,
+	MAX_LAMP_BYTES,
 	createReferenceCalibration,
 	referenceForm,
 	retireCalibration
@@ -15,7 +18,7 @@ import { InstrumentError } from '$lib/server/instruments';
  * shows the errors beside that form and not beside the profile editor.
  */
 
-type Which = 'constant' | 'reference';
+type Which = 'constant' | 'reference' | 'lamp';
 
 export function profileId(raw: string): number {
 	const id = Number(raw);
@@ -31,6 +34,24 @@ async function add(event: RequestEvent, which: Which) {
 			const form = await parseForm(event.request, constantForm);
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
 			await createConstantCalibration(project.id, id, form.data, user.id);
+		} else if (which === 'lamp') {
+			// The file is not a text field: read it from a copy of the body parseForm consumes.
+			const copy = event.request.clone();
+			const form = await parseForm(event.request, lampForm);
+			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
+			const file = (await copy.formData()).get('lamp');
+			const refuse = (message: string) =>
+				fail(400, { calibration: which, errors: { lamp: [message] }, values: form.data });
+			if (!(file instanceof File) || file.size === 0)
+				return refuse('Choose the lamp spectrum file (shift or wavelength, counts).');
+			if (file.size > MAX_LAMP_BYTES) return refuse('The lamp file is larger than 5 MB.');
+			await createLampCalibration(
+				project.id,
+				id,
+				form.data,
+				{ name: file.name, text: await file.text() },
+				user.id
+			);
 		} else {
 			const form = await parseForm(event.request, referenceForm);
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
@@ -53,6 +74,7 @@ async function add(event: RequestEvent, which: Which) {
 export const calibrationActions = {
 	addConstant: (event: RequestEvent) => add(event, 'constant'),
 	addReference: (event: RequestEvent) => add(event, 'reference'),
+	addLamp: (event: RequestEvent) => add(event, 'lamp'),
 	retire: async (event: RequestEvent) => {
 		const { project, user } = await requireProject(event, 'upload');
 		const id = profileId(event.params.profile ?? '');
