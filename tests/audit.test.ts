@@ -150,9 +150,17 @@ describe('project settings', () => {
 
 	it('refuses an empty name with 400 beside the field', async () => {
 		const made = await written(async () => {
-			const response = await s.owner.post(`${base()}/settings?/save`, settings({ name: ' ' }));
+			const response = await s.owner.post(
+				`${base()}/settings?/save`,
+				settings({ name: ' ', signOffRequired: '' })
+			);
 			expect(response.status).toBe(400);
-			expect(await response.text()).toContain('at least two characters');
+			const html = await response.text();
+			expect(html).toContain('at least two characters');
+			// The form keeps what was submitted: the switch stays off as the owner left it.
+			const box = /<input[^>]*name="signOffRequired"[^>]*>/.exec(html)?.[0];
+			expect(box).toBeDefined();
+			expect(box).not.toContain('checked');
 		});
 		expect(made).toHaveLength(0);
 	});
