@@ -1,6 +1,7 @@
 import { and, asc, count, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
 import { db } from './db';
 import { measurements, readings } from './db/schema';
+import { seriesView, type SeriesView } from '$lib/series/view';
 
 /**
  * Series are, in this slice, the free-text `series` label of measurements; a series as an entity
@@ -10,8 +11,7 @@ import { measurements, readings } from './db/schema';
 export interface SeriesSummary {
 	name: string;
 	measurements: number;
-	withPower: number;
-	withPosition: number;
+	view: SeriesView;
 }
 
 export async function listSeries(projectId: number): Promise<SeriesSummary[]> {
@@ -19,14 +19,18 @@ export async function listSeries(projectId: number): Promise<SeriesSummary[]> {
 		.select({
 			name: measurements.series,
 			measurements: count(),
-			withPower: sql<number>`count(${measurements.laserPowerMw})::int`,
-			withPosition: sql<number>`count(*) filter (where ${measurements.x} is not null and ${measurements.y} is not null)::int`
+			powers: sql<number>`count(distinct ${measurements.laserPowerMw})::int`,
+			placed: sql<number>`count(*) filter (where ${measurements.x} is not null and ${measurements.y} is not null)::int`
 		})
 		.from(measurements)
 		.where(and(eq(measurements.projectId, projectId), isNotNull(measurements.series)))
 		.groupBy(measurements.series)
 		.orderBy(asc(measurements.series));
-	return rows.map((r) => ({ ...r, name: r.name ?? '' }));
+	return rows.map((r) => ({
+		name: r.name ?? '',
+		measurements: r.measurements,
+		view: seriesView(r)
+	}));
 }
 
 /** One measurement of a series with its newest reading, in a compact form for the page. */
@@ -105,13 +109,10 @@ export async function loadSeriesPoints(projectId: number, name: string): Promise
 		.sort((a, b) => a.at.localeCompare(b.at) || a.id.localeCompare(b.id));
 }
 
-export type SeriesView = 'map' | 'power-sweep' | 'control-chart';
-
-/** Positions make a map; two or more distinct laser powers a sweep; otherwise a control chart. */
 export function viewFor(points: SeriesPoint[]): SeriesView {
-	const placed = points.filter((p) => p.x != null && p.y != null).length;
-	if (placed >= 2 && placed * 2 >= points.length) return 'map';
-	const powers = new Set(points.flatMap((p) => (p.powerMw != null ? [p.powerMw] : [])));
-	if (powers.size >= 2) return 'power-sweep';
-	return 'control-chart';
+	return seriesView({
+		measurements: points.length,
+		placed: points.filter((p) => p.x != null && p.y != null).length,
+		powers: new Set(points.flatMap((p) => (p.powerMw != null ? [p.powerMw] : []))).size
+	});
 }
