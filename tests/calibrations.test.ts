@@ -229,11 +229,12 @@ async function postFile(
 	session: Session,
 	path: string,
 	fields: Record<string, string>,
-	file: { name: string; text: string }
+	file: { name: string; text: string },
+	field = 'lamp'
 ) {
 	const body = new FormData();
 	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	body.set('lamp', new File([file.text], file.name, { type: 'text/csv' }));
+	body.set(field, new File([file.text], file.name, { type: 'text/csv' }));
 	const response = await fetch(APP_URL + path, {
 		method: 'POST',
 		headers: { cookie: session.header(), origin: APP_URL, accept: 'text/html' },
@@ -302,12 +303,47 @@ describe('white-light lamp calibration (physics.md §1.3b)', () => {
 			text: ''
 		});
 		expect(empty.status).toBe(400);
-		expect(await empty.text()).toContain('Choose the lamp spectrum file');
+		expect(await empty.text()).toContain('Choose the lamp spectrum');
 		const junk = await postFile(sessions.analyst, `${photonPath}?/addLamp`, fields, {
 			name: 'junk.csv',
 			text: 'no numbers here\nat all\n'
 		});
 		expect(junk.status).toBe(400);
 		expect(await junk.text()).toContain('junk.csv');
+	});
+});
+
+describe('measured response curve', () => {
+	const truth = (shift: number) => 0.6 + 0.3 * Math.cos((shift + 200) / 900) - 1e-4 * shift;
+	const table = (from: number) =>
+		'shift,response\n' +
+		Array.from({ length: (1000 - from) / 10 + 1 }, (_, i) => from + 10 * i)
+			.map((x) => `${x},${truth(x)}`)
+			.join('\n');
+
+	it('stores C = R(−ν̃m)/R(+ν̃m) with u = C·√2·u_rel, and refuses a curve that misses the band', async () => {
+		const fields = { u_percent: '1', mode_cm1: String(SI) };
+		const added = await postFile(
+			sessions.analyst,
+			`${energyPath}?/addCurve`,
+			fields,
+			{ name: 'response.csv', text: table(-1000) },
+			'curve'
+		);
+		expect(added.status).toBe(303);
+		const [cal] = await rows(energyPath);
+		const c = truth(-SI) / truth(SI);
+		expect(cal.c).toBeCloseTo(c, 4);
+		expect(cal.uC).toBeCloseTo(cal.c * Math.SQRT2 * 0.01, 12);
+
+		const half = await postFile(
+			sessions.analyst,
+			`${energyPath}?/addCurve`,
+			fields,
+			{ name: 'stokes-only.csv', text: table(0) },
+			'curve'
+		);
+		expect(half.status).toBe(400);
+		expect(await half.text()).toContain('extend the calibration rather than extrapolate it');
 	});
 });

@@ -111,7 +111,20 @@ export const lampForm = z
 	.superRefine(checkValidity);
 export type LampInput = z.infer<typeof lampForm>;
 
-/** The largest lamp file accepted, bytes. */
+export const curveForm = z
+	.object({
+		u_percent: nonNegative('relative uncertainty of the response', '%').pipe(
+			z.number().max(50, 'At most 50 %.')
+		),
+		mode_cm1: positive('band shift', 'cm⁻¹').pipe(
+			z.number().max(5000, 'A Raman shift of at most 5000 cm⁻¹.')
+		),
+		...validity
+	})
+	.superRefine(checkValidity);
+export type CurveInput = z.infer<typeof curveForm>;
+
+/** The largest lamp or response file accepted, bytes. */
 export const MAX_LAMP_BYTES = 5 * 1024 * 1024;
 
 /** The profile with its newest version, inside the caller's transaction; 404 when absent. */
@@ -294,6 +307,55 @@ export function createLampCalibration(
 				};
 			} catch (err) {
 				if (err instanceof EngineError) throw new InstrumentError('lamp', err.message, 400);
+				throw err;
+			}
+		},
+		input
+	);
+}
+
+/**
+ * A measured relative response R(shift) (both signs, e.g. from a vendor or a luminescent
+ * standard characterised on both sides): C = R(−ν̃m)/R(+ν̃m), interpolated by the engine.
+ */
+export function createCurveCalibration(
+	projectId: number,
+	profileId: number,
+	input: CurveInput,
+	file: { name: string; text: string },
+	userId: string
+) {
+	return insertCalibration(
+		projectId,
+		profileId,
+		userId,
+		(version) => {
+			try {
+				const parsed = parseSpectrum(file, { minPoints: 2 });
+				const f = responseFactor(
+					{
+						kind: 'curve',
+						shift: Array.from(parsed.x),
+						response: Array.from(parsed.y),
+						u_relative: input.u_percent / 100
+					},
+					laserWavenumber(version.laserNm),
+					input.mode_cm1,
+					version.detector === 'energy' ? 4 : 3
+				);
+				return {
+					c: f.c,
+					uC: f.u_c,
+					inputs: {
+						method: 'response-curve',
+						uRelative: input.u_percent / 100,
+						points: parsed.x.length,
+						modeCm1: input.mode_cm1,
+						file: file.name
+					}
+				};
+			} catch (err) {
+				if (err instanceof EngineError) throw new InstrumentError('curve', err.message, 400);
 				throw err;
 			}
 		},

@@ -27,7 +27,7 @@ export type CalibrationInputs =
 			laserNm: number;
 			exponent: 3 | 4;
 	  }
-	| { method: 'response-curve'; uRelative: number; points: number }
+	| { method: 'response-curve'; uRelative: number; points: number; modeCm1: number; file: string }
 	| {
 			method: 'lamp';
 			laserNm: number;

@@ -3,6 +3,8 @@ import { requireProject } from '$lib/server/access';
 import {
 	constantForm,
 	createConstantCalibration,
+	createCurveCalibration,
+	curveForm,
 	createLampCalibration,
 	lampForm,
 	MAX_LAMP_BYTES,
@@ -18,12 +20,24 @@ import { InstrumentError } from '$lib/server/instruments';
  * shows the errors beside that form and not beside the profile editor.
  */
 
-type Which = 'constant' | 'reference' | 'lamp';
+type Which = 'constant' | 'reference' | 'lamp' | 'curve';
 
 export function profileId(raw: string): number {
 	const id = Number(raw);
 	if (!Number.isSafeInteger(id) || id <= 0) error(404, 'Not found');
 	return id;
+}
+
+/** The file field of a form, read from a copy of the body that parseForm consumes. */
+async function readUpload(
+	copy: Request,
+	field: string,
+	what: string
+): Promise<{ name: string; text: string } | { message: string }> {
+	const file = (await copy.formData()).get(field);
+	if (!(file instanceof File) || file.size === 0) return { message: `Choose ${what}.` };
+	if (file.size > MAX_LAMP_BYTES) return { message: 'The file is larger than 5 MB.' };
+	return { name: file.name, text: await file.text() };
 }
 
 async function add(event: RequestEvent, which: Which) {
@@ -35,23 +49,33 @@ async function add(event: RequestEvent, which: Which) {
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
 			await createConstantCalibration(project.id, id, form.data, user.id);
 		} else if (which === 'lamp') {
-			// The file is not a text field: read it from a copy of the body parseForm consumes.
 			const copy = event.request.clone();
 			const form = await parseForm(event.request, lampForm);
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
-			const file = (await copy.formData()).get('lamp');
-			const refuse = (message: string) =>
-				fail(400, { calibration: which, errors: { lamp: [message] }, values: form.data });
-			if (!(file instanceof File) || file.size === 0)
-				return refuse('Choose the lamp spectrum file (shift or wavelength, counts).');
-			if (file.size > MAX_LAMP_BYTES) return refuse('The lamp file is larger than 5 MB.');
-			await createLampCalibration(
-				project.id,
-				id,
-				form.data,
-				{ name: file.name, text: await file.text() },
-				user.id
+			const upload = await readUpload(
+				copy,
+				which,
+				'the lamp spectrum (shift or wavelength, counts)'
 			);
+			if ('message' in upload)
+				return fail(400, {
+					calibration: which,
+					errors: { lamp: [upload.message] },
+					values: form.data
+				});
+			await createLampCalibration(project.id, id, form.data, upload, user.id);
+		} else if (which === 'curve') {
+			const copy = event.request.clone();
+			const form = await parseForm(event.request, curveForm);
+			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
+			const upload = await readUpload(copy, which, 'the response file (shift, response)');
+			if ('message' in upload)
+				return fail(400, {
+					calibration: which,
+					errors: { curve: [upload.message] },
+					values: form.data
+				});
+			await createCurveCalibration(project.id, id, form.data, upload, user.id);
 		} else {
 			const form = await parseForm(event.request, referenceForm);
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
@@ -75,6 +99,7 @@ export const calibrationActions = {
 	addConstant: (event: RequestEvent) => add(event, 'constant'),
 	addReference: (event: RequestEvent) => add(event, 'reference'),
 	addLamp: (event: RequestEvent) => add(event, 'lamp'),
+	addCurve: (event: RequestEvent) => add(event, 'curve'),
 	retire: async (event: RequestEvent) => {
 		const { project, user } = await requireProject(event, 'upload');
 		const id = profileId(event.params.profile ?? '');
