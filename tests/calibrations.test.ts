@@ -347,3 +347,19 @@ describe('measured response curve', () => {
 		expect(await half.text()).toContain('extend the calibration rather than extrapolate it');
 	});
 });
+
+describe('validity', () => {
+	it('marks an active calibration whose validity has ended', async () => {
+		const added = await sessions.owner.post(`${energyPath}?/addConstant`, {
+			c: '1.02',
+			u_c: '0.01',
+			source: 'old certificate',
+			valid_from: '2020-01-01',
+			valid_until: '2021-01-01'
+		});
+		expect(added.status).toBe(303);
+		const page = await (await sessions.viewer.get(energyPath)).text();
+		expect(page).toContain('2020-01-01 – 2021-01-01');
+		expect(page).toContain('(past its validity)');
+	});
+});
