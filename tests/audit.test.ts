@@ -185,6 +185,9 @@ describe('the audit trail page', () => {
 		expect(row('token.create')).toContain(`owner ${world.project.slug}`);
 		expect(row('measurement.upload')).toContain('test PC');
 		expect(row('measurement.upload')).toContain(M.id.slice(0, 8));
+		// Entries about a measurement or a reading link to the reading page.
+		expect(row('measurement.upload')).toContain(`${base()}/measurements/${M.id}"`);
+		expect(row('reading.create')).toContain(`${base()}/measurements/${M.id}?reading=`);
 	});
 
 	it('filters by action, who, object type and date from the address', async () => {

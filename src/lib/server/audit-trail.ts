@@ -55,6 +55,35 @@ function actorLabel(
 	return { kind: 'system' as const, name: 'system' };
 }
 
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+
+/** The measurement each entry is about, when it names a measurement or one of its readings. */
+async function withLinks<T extends { objectType: string; objectId: string }>(entries: T[]) {
+	const ids = [
+		...new Set(
+			entries
+				.filter((e) => e.objectType === 'reading' && UUID.test(e.objectId))
+				.map((e) => e.objectId)
+		)
+	];
+	const owners = ids.length
+		? await db
+				.select({ id: readings.id, measurementId: readings.measurementId })
+				.from(readings)
+				.where(inArray(readings.id, ids))
+		: [];
+	const of = new Map(owners.map((r) => [r.id, r.measurementId]));
+	return entries.map((e) => ({
+		...e,
+		measurementId:
+			e.objectType === 'measurement' && UUID.test(e.objectId)
+				? e.objectId
+				: e.objectType === 'reading'
+					? (of.get(e.objectId) ?? null)
+					: null
+	}));
+}
+
 function conditions(projectId: number, f: AuditFilter): SQL[] {
 	const where: SQL[] = [eq(auditLog.projectId, projectId)];
 	if (f.action) where.push(eq(auditLog.action, f.action));
@@ -111,7 +140,7 @@ export async function auditTrail(projectId: number, filter: AuditFilter, page: n
 			.where(ofProject)
 	]);
 	return {
-		entries: withActors(rows),
+		entries: await withLinks(withActors(rows)),
 		total,
 		pageSize: AUDIT_PAGE_SIZE,
 		choices: {
