@@ -90,6 +90,11 @@ const routes = (): Route[] => {
 			send: (s) => s.get(`${p}/measurements/${measurementId}/files/stokes`)
 		},
 		{ name: 'GET upload page', capability: 'upload', send: (s) => s.get(`${p}/upload`) },
+		{ name: 'GET series', capability: 'read', send: (s) => s.get(`${p}/series`) },
+		{ name: 'GET instruments', capability: 'read', send: (s) => s.get(`${p}/instruments`) },
+		{ name: 'GET materials', capability: 'read', send: (s) => s.get(`${p}/materials`) },
+		{ name: 'GET audit trail', capability: 'sign-off', send: (s) => s.get(`${p}/audit`) },
+		{ name: 'GET settings', capability: 'manage', send: (s) => s.get(`${p}/settings`) },
 		{
 			name: 'POST upload',
 			capability: 'upload',
