@@ -10,6 +10,8 @@ export default defineConfig({
 		environment: 'node',
 		testTimeout: 60_000,
 		hookTimeout: 120_000,
+		// Browser journeys poll the page after a click; a loaded CI machine needs more than 1 s.
+		expect: { poll: { timeout: 15_000, interval: 100 } },
 		// The browser and integration tests share one app server and database; keep files serial.
 		fileParallelism: false
 	}
