@@ -6,7 +6,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { closeDb } from '../src/lib/server/db';
 import { ingestMeasurement } from '../src/lib/server/measurements/ingest';
 import { bucket, s3 } from '../src/lib/server/storage';
-import { fixture, FIXTURE_PAIRS } from './support/pairs';
+import { si532Ingest } from './support/pairs';
 
 afterAll(closeDb);
 
@@ -16,21 +16,7 @@ describe('database refuses after the upload', () => {
 		const err = await ingestMeasurement({
 			projectId: missingProject,
 			actor: {},
-			metadata: { ...FIXTURE_PAIRS[0].metadata, c_factor: 1, u_c_factor: 0.02 } as never,
-			files: [
-				{
-					part: 'stokes',
-					fileName: 's.csv',
-					contentType: 'text/csv',
-					bytes: new Uint8Array(fixture('si-532-stokes.csv'))
-				},
-				{
-					part: 'anti_stokes',
-					fileName: 'a.csv',
-					contentType: 'text/csv',
-					bytes: new Uint8Array(fixture('si-532-anti-stokes.csv'))
-				}
-			]
+			...si532Ingest()
 		}).catch((e) => e);
 		expect(err.status).toBe(503);
 		const listed = await s3().send(

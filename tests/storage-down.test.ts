@@ -3,7 +3,7 @@
 import { ListObjectsV2Command, S3Client } from '@aws-sdk/client-s3';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { fixture, FIXTURE_PAIRS } from './support/pairs';
+import { si532Ingest } from './support/pairs';
 
 const realEndpoint = process.env.S3_ENDPOINT!;
 const real = new S3Client({
@@ -22,22 +22,6 @@ async function objectsUnder(prefix: string) {
 	);
 	return listed.Contents?.length ?? 0;
 }
-
-const files = () => [
-	{
-		part: 'stokes' as const,
-		fileName: 's.csv',
-		contentType: 'text/csv',
-		bytes: new Uint8Array(fixture('si-532-stokes.csv'))
-	},
-	{
-		part: 'anti_stokes' as const,
-		fileName: 'as.csv',
-		contentType: 'text/csv',
-		bytes: new Uint8Array(fixture('si-532-anti-stokes.csv'))
-	}
-];
-const metadata = { ...FIXTURE_PAIRS[0].metadata, c_factor: 1, u_c_factor: 0.02 } as never;
 
 describe('storage unreachable', () => {
 	let mod: typeof import('../src/lib/server/measurements/ingest');
@@ -59,7 +43,7 @@ describe('storage unreachable', () => {
 	it('answers 503 and stores no row', async () => {
 		const { measurements } = await import('../src/lib/server/db/schema');
 		const err = await mod
-			.ingestMeasurement({ projectId: world.project.id, actor: {}, metadata, files: files() })
+			.ingestMeasurement({ projectId: world.project.id, actor: {}, ...si532Ingest() })
 			.catch((e) => e);
 		expect(err.status).toBe(503);
 		expect(err.detail).toMatch(/nothing was stored/);

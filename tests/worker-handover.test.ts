@@ -7,7 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { join } from 'node:path';
 import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { fixture, FIXTURE_PAIRS } from './support/pairs';
+import { si532Ingest } from './support/pairs';
 
 const ROOT = join(import.meta.dirname, '..');
 const QUEUE = `analyse-test-${randomBytes(4).toString('hex')}`;
@@ -59,21 +59,7 @@ beforeAll(async () => {
 	const { measurement } = await ingestMeasurement({
 		projectId: world.project.id,
 		actor: {},
-		metadata: { ...FIXTURE_PAIRS[0].metadata, c_factor: 1, u_c_factor: 0.02 } as never,
-		files: [
-			{
-				part: 'stokes',
-				fileName: 's.csv',
-				contentType: 'text/csv',
-				bytes: new Uint8Array(fixture('si-532-stokes.csv'))
-			},
-			{
-				part: 'anti_stokes',
-				fileName: 'a.csv',
-				contentType: 'text/csv',
-				bytes: new Uint8Array(fixture('si-532-anti-stokes.csv'))
-			}
-		]
+		...si532Ingest()
 	});
 	measurementId = measurement.id;
 	const [row] = await db.select().from(analyses).where(eq(analyses.measurementId, measurementId));

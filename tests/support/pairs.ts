@@ -97,3 +97,17 @@ export async function waitForAnalysis(token: string, id: string, timeoutMs = 30_
 	}
 	throw new Error(`measurement ${id} was not analysed within ${timeoutMs} ms`);
 }
+
+/** The Si 532 nm fixture pair as the ingest service takes it, for tests that call it directly. */
+export function si532Ingest() {
+	const file = (part: 'stokes' | 'anti_stokes', name: string) => ({
+		part,
+		fileName: name,
+		contentType: 'text/csv',
+		bytes: new Uint8Array(fixture(name))
+	});
+	return {
+		metadata: { ...FIXTURE_PAIRS[0].metadata, c_factor: 1, u_c_factor: 0.02 } as never,
+		files: [file('stokes', 'si-532-stokes.csv'), file('anti_stokes', 'si-532-anti-stokes.csv')]
+	};
+}
