@@ -160,11 +160,19 @@ async function insertCalibration(
 		uC: number;
 		inputs: CalibrationInputs;
 	},
-	input: { valid_from: Date | null; valid_until: Date | null; notes: string }
+	input: { valid_from: Date | null; valid_until: Date | null; notes: string },
+	/** The form field an engine refusal belongs beside. */
+	refusedField: string
 ) {
 	return db.transaction(async (tx) => {
 		const { version } = await lockProfile(tx, projectId, profileId);
-		const made = make(version);
+		let made: ReturnType<typeof make>;
+		try {
+			made = make(version);
+		} catch (err) {
+			if (err instanceof EngineError) throw new InstrumentError(refusedField, err.message, 400);
+			throw err;
+		}
 		const [row] = await tx
 			.insert(calibrations)
 			.values({
@@ -207,7 +215,8 @@ export function createConstantCalibration(
 			const f = responseFactor({ kind: 'constant', c: input.c, u_c: input.u_c }, 1, 0, 3);
 			return { c: f.c, uC: f.u_c, inputs: { method: 'constant', source: input.source } };
 		},
-		input
+		input,
+		'c'
 	);
 }
 
@@ -227,24 +236,18 @@ export function createReferenceCalibration(
 		userId,
 		(version) => {
 			const exponent = version.detector === 'energy' ? 4 : 3;
-			let f;
-			try {
-				f = responseFactor(
-					{
-						kind: 'reference',
-						ratio: input.ratio,
-						u_ratio: input.u_ratio,
-						t0_k: input.t0_k,
-						u_t0_k: input.u_t0_k
-					},
-					laserWavenumber(version.laserNm),
-					input.mode_cm1,
-					exponent
-				);
-			} catch (err) {
-				if (err instanceof EngineError) throw new InstrumentError('mode_cm1', err.message, 400);
-				throw err;
-			}
+			const f = responseFactor(
+				{
+					kind: 'reference',
+					ratio: input.ratio,
+					u_ratio: input.u_ratio,
+					t0_k: input.t0_k,
+					u_t0_k: input.u_t0_k
+				},
+				laserWavenumber(version.laserNm),
+				input.mode_cm1,
+				exponent
+			);
 			return {
 				c: f.c,
 				uC: f.u_c,
@@ -260,7 +263,8 @@ export function createReferenceCalibration(
 				}
 			};
 		},
-		input
+		input,
+		'mode_cm1'
 	);
 }
 
@@ -280,37 +284,33 @@ export function createLampCalibration(
 		profileId,
 		userId,
 		(version) => {
-			try {
-				const parsed = parseSpectrum(lamp);
-				const cal = lampCalibration({
-					lamp: { shift: toRamanShift(parsed.x, input.axis, version.laserNm), counts: parsed.y },
+			const parsed = parseSpectrum(lamp);
+			const cal = lampCalibration({
+				lamp: { shift: toRamanShift(parsed.x, input.axis, version.laserNm), counts: parsed.y },
+				laserNm: version.laserNm,
+				colourTemperatureK: input.colour_temperature_k,
+				uColourTemperatureK: input.u_colour_temperature_k,
+				modeCm1: input.mode_cm1,
+				uRelative: input.u_percent / 100
+			});
+			return {
+				c: cal.c,
+				uC: cal.u_c,
+				inputs: {
+					method: 'lamp',
 					laserNm: version.laserNm,
 					colourTemperatureK: input.colour_temperature_k,
 					uColourTemperatureK: input.u_colour_temperature_k,
 					modeCm1: input.mode_cm1,
-					uRelative: input.u_percent / 100
-				});
-				return {
-					c: cal.c,
-					uC: cal.u_c,
-					inputs: {
-						method: 'lamp',
-						laserNm: version.laserNm,
-						colourTemperatureK: input.colour_temperature_k,
-						uColourTemperatureK: input.u_colour_temperature_k,
-						modeCm1: input.mode_cm1,
-						uRelative: input.u_percent / 100,
-						file: lamp.name,
-						points: parsed.x.length,
-						budget: cal.budget
-					}
-				};
-			} catch (err) {
-				if (err instanceof EngineError) throw new InstrumentError('lamp', err.message, 400);
-				throw err;
-			}
+					uRelative: input.u_percent / 100,
+					file: lamp.name,
+					points: parsed.x.length,
+					budget: cal.budget
+				}
+			};
 		},
-		input
+		input,
+		'lamp'
 	);
 }
 
@@ -330,36 +330,32 @@ export function createCurveCalibration(
 		profileId,
 		userId,
 		(version) => {
-			try {
-				const parsed = parseSpectrum(file, { minPoints: 2 });
-				const f = responseFactor(
-					{
-						kind: 'curve',
-						shift: Array.from(parsed.x),
-						response: Array.from(parsed.y),
-						u_relative: input.u_percent / 100
-					},
-					laserWavenumber(version.laserNm),
-					input.mode_cm1,
-					version.detector === 'energy' ? 4 : 3
-				);
-				return {
-					c: f.c,
-					uC: f.u_c,
-					inputs: {
-						method: 'response-curve',
-						uRelative: input.u_percent / 100,
-						points: parsed.x.length,
-						modeCm1: input.mode_cm1,
-						file: file.name
-					}
-				};
-			} catch (err) {
-				if (err instanceof EngineError) throw new InstrumentError('curve', err.message, 400);
-				throw err;
-			}
+			const parsed = parseSpectrum(file, { minPoints: 2 });
+			const f = responseFactor(
+				{
+					kind: 'curve',
+					shift: Array.from(parsed.x),
+					response: Array.from(parsed.y),
+					u_relative: input.u_percent / 100
+				},
+				laserWavenumber(version.laserNm),
+				input.mode_cm1,
+				version.detector === 'energy' ? 4 : 3
+			);
+			return {
+				c: f.c,
+				uC: f.u_c,
+				inputs: {
+					method: 'response-curve',
+					uRelative: input.u_percent / 100,
+					points: parsed.x.length,
+					modeCm1: input.mode_cm1,
+					file: file.name
+				}
+			};
 		},
-		input
+		input,
+		'curve'
 	);
 }
 
