@@ -5,7 +5,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
 import { auditLog, projects, readings, signOffs } from '../src/lib/server/db/schema';
 import { signIn, waitForMail, type Session } from './support/http';
-import { FIXTURE_PAIRS, fixture, postMeasurement, waitForAnalysis } from './support/pairs';
+import {
+	fixture,
+	FIXTURE_PAIRS,
+	measureSi532,
+	postMeasurement,
+	waitForAnalysis
+} from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -17,22 +23,7 @@ const B = { id: '', reading: '' };
 const pair = FIXTURE_PAIRS[0];
 const page = (m: { id: string }) => `/projects/${world.project.slug}/measurements/${m.id}`;
 
-async function measure(label: string) {
-	const parts = Object.fromEntries(
-		Object.entries(pair.files).map(([part, name]) => [part, fixture(name)])
-	);
-	const response = await postMeasurement(world.token, parts, {
-		...pair.metadata,
-		c_factor: 1,
-		u_c_factor: 0.02,
-		label
-	});
-	expect(response.status).toBe(202);
-	const { id } = (await response.json()) as { id: string };
-	const done = await waitForAnalysis(world.token, id);
-	expect(done.status).toBe('done');
-	return { id, reading: done.reading.id as string };
-}
+const measure = (label: string) => measureSi532(world.token, label);
 
 const auditFor = (readingId: string, action: string) =>
 	db

@@ -1,6 +1,7 @@
 // Spectrum pairs for API tests: the committed synthetic fixtures (known temperatures in
 // fixtures/spectra/truth.json) and fresh ones from the engine's own generator.
 import { readFileSync } from 'node:fs';
+import { expect } from 'vitest';
 import { join } from 'node:path';
 import { syntheticPair, type SyntheticSpec } from '../../src/lib/thermometry/synthetic';
 import { APP_URL } from './http';
@@ -110,4 +111,23 @@ export function si532Ingest() {
 		metadata: { ...FIXTURE_PAIRS[0].metadata, c_factor: 1, u_c_factor: 0.02 } as never,
 		files: [file('stokes', 'si-532-stokes.csv'), file('anti_stokes', 'si-532-anti-stokes.csv')]
 	};
+}
+
+/** Upload the Si 532 nm fixture pair with a label and wait for its reading (which must come). */
+export async function measureSi532(token: string, label: string) {
+	const pair = FIXTURE_PAIRS[0];
+	const parts = Object.fromEntries(
+		Object.entries(pair.files).map(([part, name]) => [part, fixture(name)])
+	);
+	const response = await postMeasurement(token, parts, {
+		...pair.metadata,
+		c_factor: 1,
+		u_c_factor: 0.02,
+		label
+	});
+	expect(response.status).toBe(202);
+	const { id } = (await response.json()) as { id: string };
+	const done = await waitForAnalysis(token, id);
+	expect(done.status).toBe('done');
+	return { id, reading: done.reading.id as string };
 }
