@@ -389,6 +389,19 @@ describe('listing and export', () => {
 	});
 });
 
+// Si at 40 K: the anti-Stokes band is e^(−c₂·520.7/40) ≈ 10⁻⁸ of the Stokes one — not there.
+const coldSiliconPair = (seed: number) =>
+	syntheticCsv({
+		laserNm: 532,
+		modeCm1: 520.7,
+		temperatureK: 40,
+		exponent: 3,
+		lineshape: 'lorentzian',
+		fwhmCm1: 3.5,
+		stokesCounts: 2e5,
+		seed
+	});
+
 describe('mail preferences', () => {
 	it('sends nothing to an uploader who switched the notices off', async () => {
 		await db
@@ -396,16 +409,7 @@ describe('mail preferences', () => {
 			.set({ notifyOnProblems: false })
 			.where(eq(users.id, other.people.owner.id));
 		const started = Date.now();
-		const pair = syntheticCsv({
-			laserNm: 532,
-			modeCm1: 520.7,
-			temperatureK: 40,
-			exponent: 3,
-			lineshape: 'lorentzian',
-			fwhmCm1: 3.5,
-			stokesCounts: 2e5,
-			seed: 8
-		});
+		const pair = coldSiliconPair(8);
 		const response = await postMeasurement(
 			other.token,
 			{ stokes: pair.stokes, anti_stokes: pair.anti_stokes },
@@ -424,17 +428,7 @@ describe('mail preferences', () => {
 
 describe('a reading the data cannot support', () => {
 	it('withholds the temperature, says why, and e-mails the uploader', async () => {
-		// Si at 40 K: the anti-Stokes band is e^(−c₂·520.7/40) ≈ 10⁻⁸ of the Stokes one — not there.
-		const pair = syntheticCsv({
-			laserNm: 532,
-			modeCm1: 520.7,
-			temperatureK: 40,
-			exponent: 3,
-			lineshape: 'lorentzian',
-			fwhmCm1: 3.5,
-			stokesCounts: 2e5,
-			seed: 7
-		});
+		const pair = coldSiliconPair(7);
 		const started = Date.now();
 		const response = await postMeasurement(
 			world.token,
