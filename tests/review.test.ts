@@ -1,6 +1,6 @@
 // Review and sign-off (issue 7), over HTTP against the running app: measurements go in through
 // the API, the worker reads them, and people of each role try to approve or return the readings.
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, asc, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
 import { auditLog, projects, readings, signOffs } from '../src/lib/server/db/schema';
@@ -72,12 +72,12 @@ describe('the queue', () => {
 		const html = await queue(s.reviewer);
 		expect(html).toContain(`?reading=${A.reading}`);
 		expect(html).toContain(`?reading=${B.reading}`);
-		const [first, second] = (
-			await db
-				.select()
-				.from(readings)
-				.where(inArray(readings.id, [A.reading, B.reading]))
-		).sort((x, y) => x.createdAt.getTime() - y.createdAt.getTime());
+		// Ordered by the database, which keeps microseconds: the two readings may share a millisecond.
+		const [first, second] = await db
+			.select()
+			.from(readings)
+			.where(inArray(readings.id, [A.reading, B.reading]))
+			.orderBy(asc(readings.createdAt), asc(readings.id));
 		expect(html.indexOf(`?reading=${first.id}`)).toBeLessThan(
 			html.indexOf(`?reading=${second.id}`)
 		);
