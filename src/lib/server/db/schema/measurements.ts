@@ -15,6 +15,8 @@ import {
 import type { MeasurementMetadata } from '$lib/measurement-metadata';
 import { users } from './auth';
 import { timestamps } from './columns';
+import { calibrations } from './calibrations';
+import { instrumentProfileVersions } from './instruments';
 import { acquisitionTokens, projects } from './projects';
 
 export const analysisStatus = pgEnum('analysis_status', ['queued', 'analysing', 'done', 'failed']);
@@ -83,6 +85,13 @@ export const analyses = pgTable(
 			.references(() => measurements.id, { onDelete: 'cascade' }),
 		/** The full metadata the engine ran with (the upload's, with any re-analysis changes). */
 		settings: jsonb().$type<MeasurementMetadata>().notNull(),
+		/**
+		 * The instrument profile version and response calibration the settings were taken from, when
+		 * the measurement named a profile. No delete action: a reading never loses what it used
+		 * (a whole project's deletion still cascades, checked at the end of the statement).
+		 */
+		profileVersionId: integer().references(() => instrumentProfileVersions.id),
+		calibrationId: integer().references(() => calibrations.id),
 		status: analysisStatus().notNull().default('queued'),
 		failure: jsonb().$type<{ code: string; message: string }>(),
 		attempts: integer().notNull().default(0),

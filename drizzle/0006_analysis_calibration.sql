@@ -1,0 +1,4 @@
+ALTER TABLE "analyses" ADD COLUMN "profile_version_id" integer;--> statement-breakpoint
+ALTER TABLE "analyses" ADD COLUMN "calibration_id" integer;--> statement-breakpoint
+ALTER TABLE "analyses" ADD CONSTRAINT "analyses_profile_version_id_instrument_profile_versions_id_fk" FOREIGN KEY ("profile_version_id") REFERENCES "public"."instrument_profile_versions"("id") ON DELETE no action ON UPDATE no action;--> statement-breakpoint
+ALTER TABLE "analyses" ADD CONSTRAINT "analyses_calibration_id_calibrations_id_fk" FOREIGN KEY ("calibration_id") REFERENCES "public"."calibrations"("id") ON DELETE no action ON UPDATE no action;
