@@ -85,14 +85,24 @@ describe('GET /api/v1/openapi.json', () => {
 		expect(doc.paths['/api/v1/measurements/{id}'].get.responses).toHaveProperty('404');
 	});
 
-	it('generates the metadata schema from the zod schema: laser, C and u(C) are required', () => {
+	it('generates the metadata schema from the zod schema: a profile may stand for laser and C', () => {
 		const meta = doc.components.schemas.MeasurementMetadata;
-		expect(meta.required).toEqual(expect.arrayContaining(['laser_nm', 'c_factor', 'u_c_factor']));
-		// Fields with defaults are optional on input.
-		expect(meta.required).not.toContain('detector');
+		// Required only when no profile is named, which the schema checks beyond JSON Schema.
+		for (const key of ['laser_nm', 'c_factor', 'u_c_factor', 'detector', 'profile'])
+			expect(meta.required ?? []).not.toContain(key);
 		expect(Object.keys(meta.properties ?? {})).toEqual(
-			expect.arrayContaining(['modes', 'material', 'exposure_stokes_s', 'exposure_anti_stokes_s'])
+			expect.arrayContaining([
+				'profile',
+				'calibration',
+				'laser_nm',
+				'c_factor',
+				'modes',
+				'material',
+				'exposure_stokes_s',
+				'exposure_anti_stokes_s'
+			])
 		);
+		expect((meta.properties?.laser_nm as { description?: string }).description).toMatch(/profile/);
 	});
 
 	it('describes the reading with the engine’s field names', () => {

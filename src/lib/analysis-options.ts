@@ -14,6 +14,7 @@ export function analysisOptions(m: MeasurementMetadata): AnalyzeOptions {
 		xAxis: m.x_axis,
 		baseline: { kind: m.baseline ?? 'none' },
 		response: { kind: 'constant', c: m.c_factor, u_c: m.u_c_factor },
+		filterCutoffCm1: m.filter_cutoff_cm1,
 		coverageFactor: m.coverage_factor,
 		uModeCm1: m.u_mode_cm1,
 		uLaserCm1: m.u_laser_cm1,

@@ -27,7 +27,27 @@ const positive = (what: string, unit: string) =>
 
 export const measurementMetadata = z
 	.object({
-		laser_nm: positive('laser_nm', 'nm').max(20_000).describe('Laser wavelength in vacuum, nm.'),
+		profile: z
+			.union([
+				z.number().int().positive(),
+				z.string().trim().min(1, 'profile must name an instrument profile.').max(100)
+			])
+			.optional()
+			.describe(
+				'An instrument profile of the project, by name or id: its newest version gives `laser_nm`, `detector` and the filter cut-off, and its active response calibration for the band gives `c_factor` and `u_c_factor`, unless they are given here.'
+			),
+		calibration: z
+			.number()
+			.int()
+			.positive()
+			.optional()
+			.describe(
+				'A response calibration of that profile, by id, instead of the newest active one for the band.'
+			),
+		laser_nm: positive('laser_nm', 'nm')
+			.max(20_000)
+			.optional()
+			.describe('Laser wavelength in vacuum, nm; required unless a `profile` gives it.'),
 		modes: z
 			.array(positive('Each mode', 'cm⁻¹').max(5000))
 			.min(1)
@@ -48,8 +68,10 @@ export const measurementMetadata = z
 			),
 		detector: z
 			.enum(['photon-counting', 'energy'])
-			.default('photon-counting')
-			.describe('Photon-counting detectors (CCD, CMOS, PMT) use exponent 3; energy detection 4.'),
+			.optional()
+			.describe(
+				'Photon-counting detectors (CCD, CMOS, PMT) use exponent 3; energy detection 4. From the `profile` when it names one, else photon-counting.'
+			),
 		lineshape: z.enum(['lorentzian', 'gaussian', 'pseudo-voigt']).default('lorentzian'),
 		exposure_stokes_s: positive('exposure_stokes_s', 's')
 			.optional()
@@ -71,13 +93,16 @@ export const measurementMetadata = z
 			.nonnegative()
 			.optional()
 			.describe('Constant dark level per point, counts.'),
-		c_factor: positive('c_factor', 'dimensionless').describe(
-			'Anti-Stokes/Stokes response ratio C of the instrument.'
-		),
+		c_factor: positive('c_factor', 'dimensionless')
+			.optional()
+			.describe(
+				'Anti-Stokes/Stokes response ratio C of the instrument; required unless the `profile` has a calibration for the band.'
+			),
 		u_c_factor: z
 			.number({ error: 'u_c_factor must be a number.' })
 			.nonnegative('u_c_factor must not be negative.')
-			.describe('Standard uncertainty of C.'),
+			.optional()
+			.describe('Standard uncertainty of C; given together with `c_factor`.'),
 		u_mode_cm1: z
 			.number()
 			.nonnegative()
@@ -102,18 +127,52 @@ export const measurementMetadata = z
 		y: z.number().optional().describe('Position on the sample, y (µm).'),
 		acquired_at: z.iso.datetime({ offset: true }).optional()
 	})
-	.refine((m) => m.modes || m.material, {
-		path: ['modes'],
-		message: 'Give the band to use: `modes` (cm⁻¹) or a `material` key.'
+	.superRefine((m, ctx) => {
+		const need = (path: string, message: string) =>
+			ctx.addIssue({ code: 'custom', path: [path], message });
+		if (!m.modes && !m.material)
+			need('modes', 'Give the band to use: `modes` (cm⁻¹) or a `material` key.');
+		if (m.profile === undefined) {
+			if (m.laser_nm === undefined)
+				need('laser_nm', 'Give laser_nm (nm), or a `profile` that gives it.');
+			if (m.c_factor === undefined)
+				need('c_factor', 'Give c_factor, or a `profile` with a response calibration for the band.');
+			if (m.calibration !== undefined)
+				need('calibration', 'A calibration belongs to a `profile`; name the profile too.');
+		}
+		if ((m.c_factor === undefined) !== (m.u_c_factor === undefined))
+			need(
+				m.c_factor === undefined ? 'c_factor' : 'u_c_factor',
+				'Give c_factor and u_c_factor together.'
+			);
+		if (m.calibration !== undefined && m.c_factor !== undefined)
+			need('calibration', 'Give either a calibration or c_factor and u_c_factor, not both.');
 	});
 
-export type MeasurementMetadata = z.infer<typeof measurementMetadata>;
+/** What a client sends: a profile may stand for the instrument fields. */
+export type MeasurementRequest = z.infer<typeof measurementMetadata>;
+
+/**
+ * What is stored and analysed: the request with the profile and calibration resolved into the
+ * fields they stand for (src/lib/server/measurements/resolve.ts), so the stored settings alone
+ * say what the engine ran with.
+ */
+export type MeasurementMetadata = MeasurementRequest & {
+	laser_nm: number;
+	detector: 'photon-counting' | 'energy';
+	c_factor: number;
+	u_c_factor: number;
+	/** The profile version's filter cut-off, cm⁻¹, when a profile was named. */
+	filter_cutoff_cm1?: number;
+	/** Bands of the material that lay at or below that cut-off and were left out. */
+	modes_below_cutoff?: number[];
+};
 
 /**
  * The modes to fit. A project's own material key is turned into `modes` when the measurement is
  * taken in (src/lib/server/instruments.ts), so by here the key is built in.
  */
-export function modesOf(m: MeasurementMetadata): number[] {
+export function modesOf(m: Pick<MeasurementRequest, 'modes' | 'material'>): number[] {
 	if (m.modes) return m.modes;
 	const builtIn = MATERIAL_MODES[m.material as MaterialKey];
 	if (!builtIn) throw new Error(`material “${m.material}” has not been resolved to its modes`);
@@ -126,6 +185,8 @@ export const reanalysisSettings = z.object({
 	detector: z.enum(['photon-counting', 'energy']).optional(),
 	c_factor: z.number().positive().optional(),
 	u_c_factor: z.number().nonnegative().optional(),
+	/** A calibration of the measurement's profile whose C ± u replaces the one used before. */
+	calibration: z.number().int().positive().optional(),
 	coverage_factor: z.number().min(1).max(5).optional(),
 	monte_carlo: z.number().int().min(1000).max(200_000).optional()
 });

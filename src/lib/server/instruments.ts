@@ -1,7 +1,7 @@
 import { and, asc, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import { MATERIAL_KEYS } from '$lib/materials';
-import type { MeasurementMetadata } from '$lib/measurement-metadata';
+import type { MeasurementRequest } from '$lib/measurement-metadata';
 import { recordAudit } from './audit';
 import { db } from './db';
 import { problem } from './problem';
@@ -317,10 +317,10 @@ export async function addMaterial(projectId: number, input: MaterialInput, userI
  * A measurement that names one of the project's own materials gets that material's shifts as
  * its `modes`, so the stored metadata alone says what was fitted (and later edits cannot change it).
  */
-export async function resolveMaterial(
+export async function resolveMaterial<M extends Pick<MeasurementRequest, 'material' | 'modes'>>(
 	projectId: number,
-	metadata: MeasurementMetadata
-): Promise<MeasurementMetadata> {
+	metadata: M
+): Promise<M> {
 	const key = metadata.material;
 	if (!key || (MATERIAL_KEYS as readonly string[]).includes(key)) return metadata;
 	const [row] = await db

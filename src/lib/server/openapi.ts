@@ -126,7 +126,34 @@ export const readingResponse = z
 				invalid_trials: z.number().int().optional()
 			})
 			.optional(),
-		spikes_removed: z.number().int()
+		spikes_removed: z.number().int(),
+		profile: z
+			.object({
+				id: z.number().int(),
+				name: z.string(),
+				version: z.number().int(),
+				version_id: z.number().int(),
+				laser_nm: z.number(),
+				detector: z.enum(['photon-counting', 'energy']),
+				filter_cutoff_cm1: z.number()
+			})
+			.nullable()
+			.optional()
+			.describe('The instrument profile version the settings came from; null when none was named.'),
+		calibration: z
+			.object({
+				id: z.number().int(),
+				method: z.enum(['constant', 'reference-run', 'response-curve', 'lamp']),
+				c: z.number(),
+				u_c: z.number(),
+				mode_cm1: nullableNumber.describe('The band it was made at; null for a constant.'),
+				valid_from: z.iso.datetime(),
+				valid_until: z.iso.datetime().nullable(),
+				status: z.enum(['active', 'retired'])
+			})
+			.nullable()
+			.optional()
+			.describe('The response calibration C ± u came from; null when C came with the measurement.')
 	})
 	.describe('A reading, in the engine’s own field names.');
 

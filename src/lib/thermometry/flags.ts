@@ -81,7 +81,24 @@ export const FLAG_CATALOGUE = {
 		severity: 'warning',
 		what: 'Temperature is not linear in laser power; the zero-power extrapolation is doubtful.'
 	},
-	'laser-heating': { severity: 'info', what: 'The probe laser heats the spot measurably.' }
+	'laser-heating': { severity: 'info', what: 'The probe laser heats the spot measurably.' },
+	// Flags from the instrument profile and its calibration (src/lib/instrument-flags.ts).
+	'calibration-expired': {
+		severity: 'warning',
+		what: 'The response calibration had passed its validity when the spectrum was taken.'
+	},
+	'laser-differs-from-profile': {
+		severity: 'warning',
+		what: "The laser wavelength differs from the instrument profile's, so its calibration may not apply."
+	},
+	'detector-differs-from-profile': {
+		severity: 'warning',
+		what: "The detector mode (and so the exponent) differs from the instrument profile's."
+	},
+	'below-filter-cutoff': {
+		severity: 'warning',
+		what: "A band lies below the profile's filter cut-off and was left out."
+	}
 } as const satisfies Record<string, { severity: Severity; what: string }>;
 
 export type FlagCode = keyof typeof FLAG_CATALOGUE;

@@ -2,17 +2,17 @@ import { DeleteObjectCommand, PutObjectCommand } from '@aws-sdk/client-s3';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { analysisOptions } from '../../analysis-options';
-import type { MeasurementMetadata } from '../../measurement-metadata';
+import type { MeasurementMetadata, MeasurementRequest } from '../../measurement-metadata';
 import { preparePair, type PairInputs } from '../../thermometry/analyze';
 import { EngineError } from '../../thermometry/types';
 import { recordAudit, type Actor } from '../audit';
 import { db } from '../db';
-import { resolveMaterial } from '../instruments';
 import { analyses, measurementFiles, measurements } from '../db/schema';
 import { problem } from '../problem';
 import { bucket, s3 } from '../storage';
 import { enqueueAnalysis } from './jobs';
 import { MAX_FILE_BYTES } from './limits';
+import { resolveRequest } from './resolve';
 
 export type Part = 'stokes' | 'anti_stokes' | 'combined' | 'dark';
 
@@ -80,7 +80,8 @@ export function checkFiles(
 	return inputs;
 }
 
-function requestHash(metadata: MeasurementMetadata, files: IncomingFile[]) {
+// Of what the client sent, so a retry still matches after the profile's calibration changed.
+function requestHash(metadata: MeasurementRequest, files: IncomingFile[]) {
 	const parts = files
 		.map((f) => `${f.part}:${sha256(f.bytes)}`)
 		.sort()
@@ -123,15 +124,18 @@ const unavailable = () =>
 export async function ingestMeasurement(input: {
 	projectId: number;
 	actor: Actor;
-	metadata: MeasurementMetadata;
+	metadata: MeasurementRequest;
 	files: IncomingFile[];
 	idempotencyKey?: string;
 	maxFileBytes?: number;
 }): Promise<{ measurement: Measurement; created: boolean }> {
 	const { projectId, actor, files, idempotencyKey } = input;
-	const metadata = await resolveMaterial(projectId, input.metadata);
+	const { metadata, profileVersionId, calibrationId } = await resolveRequest(
+		projectId,
+		input.metadata
+	);
 	checkFiles(files, metadata, input.maxFileBytes);
-	const hash = requestHash(metadata, files);
+	const hash = requestHash(input.metadata, files);
 	if (idempotencyKey) {
 		const existing = await findByKey(projectId, idempotencyKey);
 		if (existing) return replay(existing, hash);
@@ -202,6 +206,8 @@ export async function ingestMeasurement(input: {
 				.values({
 					measurementId,
 					settings: metadata,
+					profileVersionId,
+					calibrationId,
 					requestedBy: actor.userId ?? null,
 					requestedByToken: actor.tokenId ?? null
 				})

@@ -1,7 +1,7 @@
 import { DeleteObjectCommand, GetObjectCommand, PutObjectCommand } from '@aws-sdk/client-s3';
 import { getSignedUrl } from '@aws-sdk/s3-request-presigner';
 import { z } from 'zod';
-import { measurementMetadata, type MeasurementMetadata } from '../../measurement-metadata';
+import { measurementMetadata, type MeasurementRequest } from '../../measurement-metadata';
 import { problem } from '../problem';
 import { bucket, s3 } from '../storage';
 import type { IncomingFile, Part } from './ingest';
@@ -11,7 +11,7 @@ import { MAX_FILE_BYTES, MAX_REQUEST_BYTES } from './limits';
 
 export const PARTS: Part[] = ['stokes', 'anti_stokes', 'combined', 'dark'];
 
-export function parseMetadata(raw: unknown): MeasurementMetadata {
+export function parseMetadata(raw: unknown): MeasurementRequest {
 	let value = raw;
 	if (typeof raw === 'string') {
 		try {

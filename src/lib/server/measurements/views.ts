@@ -2,17 +2,22 @@ import { and, asc, desc, eq, gte, inArray, lt, sql, type SQL } from 'drizzle-orm
 import { z } from 'zod';
 import { db } from '../db';
 import { analyses, measurementFiles, measurements, readings } from '../db/schema';
+import type { Provenance } from './provenance';
 
 export type ReadingRow = typeof readings.$inferSelect;
 type MeasurementRow = typeof measurements.$inferSelect;
 
-/** The reading as the API returns it: the engine's own field names, plus where it belongs. */
-export function readingJson(r: ReadingRow) {
+/**
+ * The reading as the API returns it: the engine's own field names, plus where it belongs and,
+ * when loaded, the instrument profile version and calibration it was made with.
+ */
+export function readingJson(r: ReadingRow, provenance?: Provenance) {
 	return {
 		id: r.id,
 		measurement_id: r.measurementId,
 		created_at: r.createdAt.toISOString(),
-		...r.result
+		...r.result,
+		...provenance
 	};
 }
 

@@ -157,7 +157,7 @@ export async function seedDemo(): Promise<DemoCredentials | null> {
 		['measurements:write', 'measurements:read'],
 		owner?.id ?? null
 	);
-	await seedDemoMeasurements({ analystId: analyst!.id, tokenId });
+	await seedDemoMeasurements({ ownerId: owner!.id, analystId: analyst!.id, tokenId });
 	return { project: DEMO_PROJECT_SLUG, accounts: DEMO_ACCOUNTS, token: secret };
 }
 

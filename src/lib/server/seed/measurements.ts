@@ -1,10 +1,11 @@
 import { eq } from 'drizzle-orm';
-import type { MeasurementMetadata } from '../../measurement-metadata';
+import type { MeasurementMetadata, MeasurementRequest } from '../../measurement-metadata';
 import { syntheticPair, type SyntheticSpec } from '../../thermometry/synthetic';
 import { db } from '../db';
 import { analyses, projects } from '../db/schema';
 import { ingestMeasurement } from '../measurements/ingest';
 import { runAnalysis } from '../worker/analyse';
+import { DEMO_PROFILE, seedDemoInstruments } from './instruments';
 
 /**
  * Demo measurements made by the engine's own synthetic generator (seeded Poisson counts of a
@@ -14,7 +15,7 @@ import { runAnalysis } from '../worker/analyse';
 
 interface DemoCase {
 	spec: SyntheticSpec;
-	metadata: Partial<MeasurementMetadata>;
+	metadata: Partial<MeasurementRequest>;
 }
 
 const csv = (shift: Float64Array, counts: Float64Array) =>
@@ -38,6 +39,15 @@ function silicon(t: number, seed: number, extra: Partial<SyntheticSpec> = {}): S
 	};
 }
 
+// The laser, detector and C of these come from the bench's profile and its calibration.
+const ON_PROFILE: Partial<MeasurementRequest> = {
+	profile: DEMO_PROFILE,
+	laser_nm: undefined,
+	detector: undefined,
+	c_factor: undefined,
+	u_c_factor: undefined
+};
+
 function filmCases(): DemoCase[] {
 	const cases: DemoCase[] = [];
 	// A 5 × 4 map across film A1 with a hot spot near (40, 20) µm.
@@ -50,6 +60,7 @@ function filmCases(): DemoCase[] {
 			cases.push({
 				spec: silicon(t, seed++),
 				metadata: {
+					...ON_PROFILE,
 					label: `film A1 (${x}, ${y}) µm`,
 					series: 'film A1 map',
 					x,
@@ -63,7 +74,12 @@ function filmCases(): DemoCase[] {
 	for (const p of [2, 4, 6, 8, 10]) {
 		cases.push({
 			spec: silicon(297 + 4.1 * p, seed++, { stokesCounts: 2e4 * p }),
-			metadata: { label: `film A2 at ${p} mW`, series: 'film A2 probe heating', laser_power_mw: p }
+			metadata: {
+				...ON_PROFILE,
+				label: `film A2 at ${p} mW`,
+				series: 'film A2 probe heating',
+				laser_power_mw: p
+			}
 		});
 	}
 	// A diamond heat spreader under the same device, at 633 nm.
@@ -124,7 +140,7 @@ async function seedProject(
 		const { measurement } = await ingestMeasurement({
 			projectId: project.id,
 			actor,
-			metadata: { ...BASE, ...c.metadata } as MeasurementMetadata,
+			metadata: { ...BASE, ...c.metadata },
 			files: [
 				{
 					part: 'stokes',
@@ -152,7 +168,15 @@ async function seedProject(
 	return cases.length;
 }
 
-export async function seedDemoMeasurements(people: { analystId: string; tokenId: number }) {
+export async function seedDemoMeasurements(people: {
+	ownerId: string;
+	analystId: string;
+	tokenId: number;
+}) {
+	const film = await db.query.projects.findFirst({
+		where: eq(projects.slug, 'thin-film-hot-spots')
+	});
+	if (film) await seedDemoInstruments(film.id, people.ownerId);
 	const a = await seedProject('thin-film-hot-spots', filmCases(), { tokenId: people.tokenId });
 	const b = await seedProject('catalyst-bed-batches', batchCases(), { userId: people.analystId });
 	return a + b;

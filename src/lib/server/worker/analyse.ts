@@ -1,12 +1,15 @@
 import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { and, desc, eq, ne } from 'drizzle-orm';
 import { analysisOptions } from '../../analysis-options';
+import { instrumentFlags } from '../../instrument-flags';
 import { analyzePairDetailed, toJson, type PairInputs } from '../../thermometry/analyze';
 import { EngineError, type Reading, type Severity } from '../../thermometry/types';
 import { recordAudit } from '../audit';
 import { db } from '../db';
 import {
 	analyses,
+	calibrations,
+	instrumentProfileVersions,
 	measurementFiles,
 	measurements,
 	readings,
@@ -96,6 +99,7 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 	try {
 		const detailed = analyzePairDetailed(inputs, options);
 		reading = detailed.reading;
+		reading.flags.push(...(await profileFlags(analysis)));
 		const pair = detailed.prepared;
 		spectra = {
 			stokes: plotWindow(pair.stokes.window, pair.stokes.baseline),
@@ -159,6 +163,28 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 		);
 	}
 	return 'done';
+}
+
+/** Warnings from the instrument profile version and calibration the settings came from. */
+async function profileFlags(analysis: typeof analyses.$inferSelect) {
+	if (analysis.profileVersionId === null) return [];
+	const [version] = await db
+		.select()
+		.from(instrumentProfileVersions)
+		.where(eq(instrumentProfileVersions.id, analysis.profileVersionId));
+	const [calibration] = analysis.calibrationId
+		? await db.select().from(calibrations).where(eq(calibrations.id, analysis.calibrationId))
+		: [];
+	const measurement = await db.query.measurements.findFirst({
+		where: eq(measurements.id, analysis.measurementId),
+		columns: { acquiredAt: true, createdAt: true }
+	});
+	return instrumentFlags({
+		settings: analysis.settings,
+		profile: version ?? null,
+		calibration: calibration ?? null,
+		at: measurement?.acquiredAt ?? measurement?.createdAt ?? new Date()
+	});
 }
 
 /** The measurement shows its newest analysis's status. */

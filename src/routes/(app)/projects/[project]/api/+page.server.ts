@@ -17,6 +17,7 @@ interface Property {
 	description?: string;
 	items?: { type?: string };
 	format?: string;
+	anyOf?: { type?: string }[];
 }
 
 /** The metadata fields as the OpenAPI document has them: from the schema that validates them. */
@@ -27,13 +28,15 @@ function metadataFields() {
 	};
 	return Object.entries(json.properties).map(([name, p]) => ({
 		name,
-		type: p.enum
-			? p.enum.join(' | ')
-			: p.type === 'array'
-				? `${p.items?.type ?? ''}[]`
-				: p.format === 'date-time'
-					? 'ISO 8601 date-time'
-					: (p.type ?? 'any'),
+		type: p.anyOf
+			? p.anyOf.map((a) => a.type ?? 'any').join(' | ')
+			: p.enum
+				? p.enum.join(' | ')
+				: p.type === 'array'
+					? `${p.items?.type ?? ''}[]`
+					: p.format === 'date-time'
+						? 'ISO 8601 date-time'
+						: (p.type ?? 'any'),
 		required: json.required?.includes(name) ?? false,
 		default: p.default === undefined ? null : JSON.stringify(p.default),
 		description: p.description ?? ''

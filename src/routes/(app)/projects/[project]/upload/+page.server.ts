@@ -2,13 +2,14 @@ import { fail, redirect } from '@sveltejs/kit';
 import { measurementMetadata, MATERIAL_MODES } from '$lib/measurement-metadata';
 import { requireProject } from '$lib/server/access';
 import { listProjectMaterials } from '$lib/server/instruments';
+import { profilesForUpload } from '$lib/server/measurements/resolve';
 import { ingestMeasurement, type IncomingFile, type Part } from '$lib/server/measurements/ingest';
 import { MAX_FILE_BYTES } from '$lib/server/measurements/limits';
 import { filesFromForm } from '$lib/server/measurements/requests';
 import { Problem } from '$lib/server/problem';
 import { parseSpectrum } from '$lib/thermometry/parse';
 import { EngineError } from '$lib/thermometry/types';
-import { FIELDS, issuesByField, metadataFromFields } from './metadata-form';
+import { FIELDS, issuesByField, LABELS, metadataFromFields } from './metadata-form';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -25,7 +26,7 @@ export const load: PageServerLoad = async (event) => {
 		modes: m.modes.map((mode) => mode.shiftCm1)
 	}));
 	const materials = [...builtIn, ...own];
-	return { materials, maxFileBytes: MAX_FILE_BYTES };
+	return { materials, profiles: await profilesForUpload(project.id), maxFileBytes: MAX_FILE_BYTES };
 };
 
 type Errors = Record<string, string[]>;
@@ -89,8 +90,8 @@ export const actions: Actions = {
 			if (!(err instanceof Problem)) throw err;
 			if (err.status === 503) return fail(503, { values, errors: {}, problem: err.detail });
 			const field =
-				err.extra.field === 'material'
-					? 'material'
+				typeof err.extra.field === 'string' && err.extra.field in LABELS
+					? err.extra.field
 					: err.extra.file !== undefined
 						? partOf(files, err.extra.file)
 						: 'files';

@@ -18,7 +18,7 @@ export const NUMBER_FIELDS = [
 	'u_c_factor'
 ] as const;
 export const TEXT_FIELDS = ['label', 'batch', 'series'] as const;
-export const CHOICE_FIELDS = ['material', 'detector', 'lineshape', 'x_axis'] as const;
+export const CHOICE_FIELDS = ['profile', 'material', 'detector', 'lineshape', 'x_axis'] as const;
 export const FIELDS = [
 	...NUMBER_FIELDS,
 	...TEXT_FIELDS,
@@ -53,6 +53,9 @@ export function metadataFromFields(get: (name: FieldName) => string | undefined)
 		const v = get(name);
 		if (!blank(v)) out[name] = v!.trim();
 	}
+	// The profile select sends the profile's id.
+	if (typeof out.profile === 'string' && /^\d+$/.test(out.profile))
+		out.profile = Number(out.profile);
 	const modes = get('modes');
 	if (!blank(modes))
 		out.modes = modes!
@@ -67,6 +70,7 @@ export function metadataFromFields(get: (name: FieldName) => string | undefined)
 /** What each field is called on the page (a zod message that names the key reads with this). */
 export const LABELS: Record<string, string> = {
 	laser_nm: 'Laser wavelength',
+	profile: 'Instrument profile',
 	modes: 'Mode',
 	material: 'Material',
 	detector: 'Detector',

@@ -8,7 +8,10 @@ import { acquisitionTokens, users } from '$lib/server/db/schema';
 import { fieldFailure, parseForm } from '$lib/server/forms';
 import { approve, decisionsFor, returnReading, type SignOffResult } from '$lib/server/reviews';
 import { loadMeasurement } from '$lib/server/measurements/views';
+import { provenanceOf } from '$lib/server/measurements/provenance';
 import { requestReanalysis } from '$lib/server/measurements/reanalyse';
+import { calibrationsForReanalysis } from '$lib/server/measurements/resolve';
+import { Problem } from '$lib/server/problem';
 import { reanalysisSettings, type ReanalysisSettings } from '$lib/measurement-metadata';
 import type { Reading } from '$lib/thermometry/types';
 import type { Actions, PageServerLoad } from './$types';
@@ -20,11 +23,13 @@ export const load: PageServerLoad = async (event) => {
 	const id = event.params.id;
 	const found = await measurementWithReading(project.id, id, event.url.searchParams.get('reading'));
 	const { measurement: m, reading } = found;
-	const [history, uploader, decisions, audit] = await Promise.all([
+	const [history, uploader, decisions, audit, provenance, calibrationChoices] = await Promise.all([
 		readingHistory(id),
 		uploadedBy(m),
 		reading ? decisionsFor(reading.id) : [],
-		measurementAudit(project.id, m.id)
+		measurementAudit(project.id, m.id),
+		reading ? provenanceOf(reading.analysisId) : null,
+		calibrationsForReanalysis(found.analysis?.profileVersionId ?? null)
 	]);
 	return {
 		measurement: {
@@ -56,9 +61,11 @@ export const load: PageServerLoad = async (event) => {
 					createdAt: reading.createdAt,
 					result: reading.result as unknown as Reading,
 					spectra: reading.spectra,
-					settings: history.find((h) => h.id === reading.id)?.settings ?? m.metadata
+					settings: history.find((h) => h.id === reading.id)?.settings ?? m.metadata,
+					provenance
 				}
 			: null,
+		calibrationChoices,
 		history,
 		audit,
 		signOff: { required: project.signOffRequired, decisions }
@@ -99,7 +106,8 @@ const reanalyseForm = z.preprocess((raw) => {
 		c_factor: num(r.c_factor),
 		u_c_factor: num(r.u_c_factor),
 		coverage_factor: num(r.coverage_factor),
-		monte_carlo: num(r.monte_carlo)
+		monte_carlo: num(r.monte_carlo),
+		calibration: num(r.calibration)
 	};
 }, reanalysisSettings);
 
@@ -109,7 +117,8 @@ const HINTS: Record<string, string> = {
 	c_factor: 'C must be a number above zero, e.g. 1.000.',
 	u_c_factor: 'u(C) must be a number, zero or above.',
 	coverage_factor: 'k must be a number from 1 to 5 (2 gives about 95 %).',
-	monte_carlo: 'Trials must be a whole number from 1000 to 200000, or left empty.'
+	monte_carlo: 'Trials must be a whole number from 1000 to 200000, or left empty.',
+	calibration: 'Choose one of the profile’s calibrations, or keep the one used.'
 };
 
 export const actions: Actions = {
@@ -130,9 +139,15 @@ export const actions: Actions = {
 					v !== undefined && found.measurement.metadata[k as keyof ReanalysisSettings] !== v
 			)
 		) as ReanalysisSettings;
-		const analysisId = await requestReanalysis(project.id, found.measurement.id, changes, {
-			userId: user.id
-		});
+		let analysisId: string | null;
+		try {
+			analysisId = await requestReanalysis(project.id, found.measurement.id, changes, {
+				userId: user.id
+			});
+		} catch (err) {
+			if (!(err instanceof Problem)) throw err;
+			return fieldFailure(400, String(err.extra.field ?? 'calibration'), err.detail);
+		}
 		if (!analysisId) error(404, 'Not found');
 		redirect(303, `/projects/${project.slug}/measurements/${found.measurement.id}?requested=1`);
 	},

@@ -1,5 +1,6 @@
 import { json } from '@sveltejs/kit';
 import { requireToken } from '$lib/server/access';
+import { provenanceOf } from '$lib/server/measurements/provenance';
 import { loadMeasurement, readingJson } from '$lib/server/measurements/views';
 import { api, problem } from '$lib/server/problem';
 
@@ -22,5 +23,5 @@ export const GET = api(async (event) => {
 			status_of_measurement: status
 		});
 	}
-	return json(readingJson(found.reading));
+	return json(readingJson(found.reading, await provenanceOf(found.reading.analysisId)));
 });

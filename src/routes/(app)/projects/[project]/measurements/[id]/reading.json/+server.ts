@@ -1,5 +1,6 @@
 import { error, json } from '@sveltejs/kit';
 import { requireProject } from '$lib/server/access';
+import { provenanceOf } from '$lib/server/measurements/provenance';
 import { readingJson } from '$lib/server/measurements/views';
 import { measurementWithReading } from '../reading.server';
 import type { RequestHandler } from './$types';
@@ -13,7 +14,7 @@ export const GET: RequestHandler = async (event) => {
 		event.url.searchParams.get('reading')
 	);
 	if (!reading) error(404, 'This measurement has no reading yet.');
-	return json(readingJson(reading), {
+	return json(readingJson(reading, await provenanceOf(reading.analysisId)), {
 		headers: { 'content-disposition': `attachment; filename="reading-${reading.id}.json"` }
 	});
 };
