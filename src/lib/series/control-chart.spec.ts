@@ -5,9 +5,11 @@ import {
 	controlLimits,
 	D2,
 	movingRangeBeyond,
+	outsideSpecification,
 	runOneSide,
 	trend,
 	twoOfThreeBeyondTwoSigma,
+	violationsAt,
 	type ControlLimits
 } from './control-chart';
 
@@ -84,5 +86,21 @@ describe('run rules', () => {
 		const rules = chart.violations.map((v) => v.rule);
 		expect(rules).toContain('beyond-3-sigma');
 		expect(chart.violations[0].sentence).toMatch(/#8/);
+	});
+
+	it('a point outside the owner’s specification limits, inside the control limits', () => {
+		// Limits 0 ± 3 (unit chart); specification 0 ± 1.5 is tighter, so 2 breaks it, not 3σ.
+		const spec = { ...unit, usl: 1.5, lsl: -1.5 };
+		expect(outsideSpecification([0, 2, -0.5, -1.6, 1.5], spec)?.indices).toEqual([1, 3]);
+		expect(outsideSpecification([0, 2], unit)).toBeNull();
+		expect(beyondThreeSigma([0, 2, -0.5, -1.6], spec)).toBeNull();
+	});
+
+	it('name the rules a given point brings up', () => {
+		const chart = controlChart([10, 12, 11, 14, 13, 12, 11, 30], { baseline: 7, usl: 20 });
+		expect(violationsAt(chart, 7).map((v) => v.rule)).toEqual(
+			expect.arrayContaining(['beyond-3-sigma', 'outside-specification'])
+		);
+		expect(violationsAt(chart, 2)).toEqual([]);
 	});
 });

@@ -38,7 +38,13 @@ export interface ControlLimits {
 }
 
 export interface RuleViolation {
-	rule: 'beyond-3-sigma' | 'run-one-side' | 'two-of-three-beyond-2-sigma' | 'trend' | 'mr-beyond';
+	rule:
+		| 'beyond-3-sigma'
+		| 'run-one-side'
+		| 'two-of-three-beyond-2-sigma'
+		| 'trend'
+		| 'mr-beyond'
+		| 'outside-specification';
 	/** Indices of the points that break the rule. */
 	indices: number[];
 	sentence: string;
@@ -175,6 +181,20 @@ export function movingRangeBeyond(values: number[], l: ControlLimits): RuleViola
 	};
 }
 
+/** Points outside the owner's specification limits (a requirement, not a statistical limit). */
+export function outsideSpecification(values: number[], l: ControlLimits): RuleViolation | null {
+	if (l.usl == null && l.lsl == null) return null;
+	const indices = values.flatMap((v, i) =>
+		(l.usl != null && v > l.usl) || (l.lsl != null && v < l.lsl) ? [i] : []
+	);
+	if (!indices.length) return null;
+	return {
+		rule: 'outside-specification',
+		indices,
+		sentence: `${indices.length === 1 ? 'Point' : 'Points'} ${list(indices)} outside the specification limits.`
+	};
+}
+
 export interface ControlChart {
 	limits: ControlLimits;
 	movingRanges: number[];
@@ -192,7 +212,13 @@ export function controlChart(
 		runOneSide(values, limits),
 		twoOfThreeBeyondTwoSigma(values, limits),
 		trend(values),
-		movingRangeBeyond(values, limits)
+		movingRangeBeyond(values, limits),
+		outsideSpecification(values, limits)
 	].filter((v): v is RuleViolation => v != null);
 	return { limits, movingRanges: movingRanges(values), violations };
+}
+
+/** The violations that involve point `index`: what a new reading there brings up. */
+export function violationsAt(chart: ControlChart, index: number): RuleViolation[] {
+	return chart.violations.filter((v) => v.indices.includes(index));
 }

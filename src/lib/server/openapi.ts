@@ -8,6 +8,8 @@ import {
 } from './measurements/limits';
 import { fromUploads, uploadRequest } from './measurements/requests';
 import { listFilters } from './measurements/views';
+import { seriesDetail, seriesList, seriesResponse } from './series-json';
+import { seriesBody } from './series-store';
 
 /**
  * The OpenAPI 3.1 document of /api/v1. Request schemas are the zod schemas the routes validate
@@ -278,7 +280,7 @@ export function openApiDocument(origin: string) {
 		},
 		servers: [{ url: origin }],
 		security: [{ bearer: [] }],
-		tags: [{ name: 'measurements' }, { name: 'tokens' }, { name: 'meta' }],
+		tags: [{ name: 'measurements' }, { name: 'series' }, { name: 'tokens' }, { name: 'meta' }],
 		paths: {
 			'/api/v1/whoami': {
 				get: {
@@ -390,6 +392,57 @@ export function openApiDocument(origin: string) {
 					}
 				}
 			},
+			'/api/v1/series': {
+				get: {
+					tags: ['series'],
+					operationId: 'listSeries',
+					summary: 'The project’s series with their kinds and limits',
+					responses: {
+						'200': { description: 'Every series.', content: jsonBody('SeriesList') },
+						...errors(401, 403, 429)
+					}
+				},
+				post: {
+					tags: ['series'],
+					operationId: 'createSeries',
+					summary: 'Create a series; measurements join it by naming it in `metadata.series`',
+					description:
+						'Needs the `measurements:write` scope. Specification limits are set by a project owner on the series page; a token that sends them is refused (403). A measurement naming a series that does not exist yet makes one, with the kind inferred from its metadata.',
+					requestBody: { required: true, content: jsonBody('SeriesCreate') },
+					responses: {
+						'201': {
+							description: 'Created.',
+							headers: { Location: { schema: { type: 'string', format: 'uri' } } },
+							content: jsonBody('Series')
+						},
+						'409': {
+							description: 'The project already has a series with that name.',
+							content: { 'application/problem+json': { schema: ref('Problem') } }
+						},
+						...errors(400, 401, 403, 415, 422, 429)
+					}
+				}
+			},
+			'/api/v1/series/{name}': {
+				get: {
+					tags: ['series'],
+					operationId: 'getSeries',
+					summary: 'One series with its points in columns (newest reading of each measurement)',
+					parameters: [
+						{
+							name: 'name',
+							in: 'path',
+							required: true,
+							description: 'The series name, URL-encoded.',
+							schema: { type: 'string' }
+						}
+					],
+					responses: {
+						'200': { description: 'The series.', content: jsonBody('SeriesDetail') },
+						...errors(401, 403, 404, 429)
+					}
+				}
+			},
 			'/api/v1/openapi.json': {
 				get: {
 					tags: ['meta'],
@@ -446,6 +499,10 @@ export function openApiDocument(origin: string) {
 				Measurement: schema(measurementResponse, 'output'),
 				MeasurementList: schema(measurementList, 'output'),
 				Reading: schema(readingResponse, 'output'),
+				SeriesCreate: schema(seriesBody),
+				Series: schema(seriesResponse, 'output'),
+				SeriesList: schema(seriesList, 'output'),
+				SeriesDetail: schema(seriesDetail, 'output'),
 				Problem: schema(problemDetails, 'output')
 			}
 		}

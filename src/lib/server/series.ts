@@ -1,41 +1,17 @@
-import { and, asc, count, desc, eq, inArray, isNotNull, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray } from 'drizzle-orm';
 import { db } from './db';
 import { measurements, readings } from './db/schema';
-import { seriesView, type SeriesView } from '$lib/series/view';
 
 /**
- * Series are, in this slice, the free-text `series` label of measurements; a series as an entity
- * with a kind comes later. The view is chosen from what the measurements carry.
+ * The readings of a series: its measurements (those carrying its name as their `series` label)
+ * with the newest reading of each. The series themselves live in series-store.ts.
  */
-
-export interface SeriesSummary {
-	name: string;
-	measurements: number;
-	view: SeriesView;
-}
-
-export async function listSeries(projectId: number): Promise<SeriesSummary[]> {
-	const rows = await db
-		.select({
-			name: measurements.series,
-			measurements: count(),
-			powers: sql<number>`count(distinct ${measurements.laserPowerMw})::int`,
-			placed: sql<number>`count(*) filter (where ${measurements.x} is not null and ${measurements.y} is not null)::int`
-		})
-		.from(measurements)
-		.where(and(eq(measurements.projectId, projectId), isNotNull(measurements.series)))
-		.groupBy(measurements.series)
-		.orderBy(asc(measurements.series));
-	return rows.map((r) => ({
-		name: r.name ?? '',
-		measurements: r.measurements,
-		view: seriesView(r)
-	}));
-}
 
 /** One measurement of a series with its newest reading, in a compact form for the page. */
 export interface SeriesPoint {
 	id: string;
+	/** The newest reading's id; null when the measurement has none yet. */
+	readingId: string | null;
 	label: string | null;
 	batch: string | null;
 	x: number | null;
@@ -71,6 +47,7 @@ export async function loadSeriesPoints(projectId: number, name: string): Promise
 	const rs = await db
 		.selectDistinctOn([readings.measurementId], {
 			measurementId: readings.measurementId,
+			readingId: readings.id,
 			t: readings.temperatureK,
 			u: readings.uTemperatureK,
 			U: readings.expandedUncertaintyK,
@@ -92,6 +69,7 @@ export async function loadSeriesPoints(projectId: number, name: string): Promise
 			const r = byId.get(m.id);
 			return {
 				id: m.id,
+				readingId: r?.readingId ?? null,
 				label: m.label,
 				batch: m.batch,
 				x: m.x,
@@ -107,12 +85,4 @@ export async function loadSeriesPoints(projectId: number, name: string): Promise
 			};
 		})
 		.sort((a, b) => a.at.localeCompare(b.at) || a.id.localeCompare(b.id));
-}
-
-export function viewFor(points: SeriesPoint[]): SeriesView {
-	return seriesView({
-		measurements: points.length,
-		placed: points.filter((p) => p.x != null && p.y != null).length,
-		powers: new Set(points.flatMap((p) => (p.powerMw != null ? [p.powerMw] : []))).size
-	});
 }

@@ -7,6 +7,7 @@ import { preparePair, type PairInputs } from '../../thermometry/analyze';
 import { EngineError } from '../../thermometry/types';
 import { recordAudit, type Actor } from '../audit';
 import { db } from '../db';
+import { ensureSeries } from '../series-store';
 import { analyses, measurementFiles, measurements } from '../db/schema';
 import { problem } from '../problem';
 import { bucket, s3 } from '../storage';
@@ -190,6 +191,7 @@ export async function ingestMeasurement(input: {
 					requestHash: hash
 				})
 				.returning();
+			await ensureSeries(tx, projectId, metadata.series, actor);
 			await tx.insert(measurementFiles).values(
 				files.map((f, i) => ({
 					measurementId,

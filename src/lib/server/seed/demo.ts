@@ -6,6 +6,7 @@ import { memberships, projects, users } from '../db/schema';
 import { hashPassword } from '../passwords';
 import { createToken } from '../tokens';
 import { seedDemoMeasurements } from './measurements';
+import { seedDemoSeries } from './series';
 
 /**
  * The demo scenario: an invented optics institute with a few projects. Everything here is
@@ -158,6 +159,7 @@ export async function seedDemo(): Promise<DemoCredentials | null> {
 		owner?.id ?? null
 	);
 	await seedDemoMeasurements({ ownerId: owner!.id, analystId: analyst!.id, tokenId });
+	await seedDemoSeries(owner!.id);
 	return { project: DEMO_PROJECT_SLUG, accounts: DEMO_ACCOUNTS, token: secret };
 }
 

@@ -114,6 +114,18 @@ function batchCases(): DemoCase[] {
 	}));
 }
 
+function coolDownCases(): DemoCase[] {
+	// Film A3 cooling after the anneal, read every 20 minutes: a time series.
+	return Array.from({ length: 8 }, (_, i) => ({
+		spec: silicon(300 + 160 * Math.exp(-i / 2.5), 400 + i),
+		metadata: {
+			label: `film A3 cool-down +${20 * i} min`,
+			series: 'film A3 cool-down',
+			acquired_at: new Date(Date.UTC(2026, 10, 20, 14, 20 * i)).toISOString()
+		}
+	}));
+}
+
 const BASE: MeasurementMetadata = {
 	laser_nm: 532,
 	modes: [520.7],
@@ -177,7 +189,9 @@ export async function seedDemoMeasurements(people: {
 		where: eq(projects.slug, 'thin-film-hot-spots')
 	});
 	if (film) await seedDemoInstruments(film.id, people.ownerId);
-	const a = await seedProject('thin-film-hot-spots', filmCases(), { tokenId: people.tokenId });
+	const a = await seedProject('thin-film-hot-spots', [...filmCases(), ...coolDownCases()], {
+		tokenId: people.tokenId
+	});
 	const b = await seedProject('catalyst-bed-batches', batchCases(), { userId: people.analystId });
 	return a + b;
 }

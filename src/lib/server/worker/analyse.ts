@@ -16,6 +16,7 @@ import {
 	type ReadingSpectra,
 	type WindowForPlot
 } from '../db/schema';
+import { alertSeriesSubscribers } from '../series-alerts';
 import { bucket, s3 } from '../storage';
 import { notifyUploader } from './notify';
 
@@ -155,6 +156,7 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 		}
 		return row;
 	});
+	if (inserted) await alertSeriesSubscribers(inserted.id);
 	if (inserted && severity === 'error') {
 		await notifyUploader(
 			analysis.measurementId,

@@ -4,3 +4,4 @@ export * from './measurements';
 export * from './reviews';
 export * from './instruments';
 export * from './calibrations';
+export * from './series';

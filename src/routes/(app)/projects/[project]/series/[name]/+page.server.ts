@@ -1,39 +1,21 @@
 import { error } from '@sveltejs/kit';
 import { requireProject } from '$lib/server/access';
-import { loadSeriesPoints, viewFor, type SeriesPoint } from '$lib/server/series';
+import { fieldFailure } from '$lib/server/forms';
+import { loadSeriesPoints, type SeriesPoint } from '$lib/server/series';
+import { chartOptions, isSubscribed, setSubscribed } from '$lib/server/series-alerts';
+import { loadMapColumns } from '$lib/server/series-map';
+import {
+	addMeasurementsForm,
+	addToSeries,
+	findSeries,
+	measurementsOutside,
+	type Series
+} from '$lib/server/series-store';
 import { controlChart } from '$lib/series/control-chart';
 import { powerSweep } from '$lib/thermometry/power-sweep';
-import type { PageServerLoad } from './$types';
-
-/** Limits come from the first BASELINE points (or all, when there are fewer). */
-const BASELINE = 20;
+import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 const usable = (p: SeriesPoint) => p.t != null && p.u != null && p.u > 0;
-
-/** The map as flat arrays over the grid of distinct x and y: one payload, not one per cell. */
-function mapOf(points: SeriesPoint[]) {
-	const placed = points.filter((p) => p.x != null && p.y != null);
-	const xs = [...new Set(placed.map((p) => p.x!))].sort((a, b) => a - b);
-	const ys = [...new Set(placed.map((p) => p.y!))].sort((a, b) => a - b);
-	const ix = new Map(xs.map((x, i) => [x, i]));
-	const iy = new Map(ys.map((y, i) => [y, i]));
-	const cells = xs.length * ys.length;
-	const t: (number | null)[] = Array(cells).fill(null);
-	const u: (number | null)[] = Array(cells).fill(null);
-	const ids: (string | null)[] = Array(cells).fill(null);
-	for (const p of placed) {
-		const c = iy.get(p.y!)! * xs.length + ix.get(p.x!)!;
-		ids[c] = p.id;
-		if (usable(p)) {
-			t[c] = p.t;
-			u[c] = p.u;
-		}
-	}
-	const hottest = placed
-		.filter(usable)
-		.reduce<SeriesPoint | null>((best, p) => (best == null || p.t! > best.t! ? p : best), null);
-	return { xs, ys, t, u, ids, hottest };
-}
 
 function sweepOf(points: SeriesPoint[]) {
 	const used = points.filter((p) => usable(p) && p.powerMw != null);
@@ -44,32 +26,64 @@ function sweepOf(points: SeriesPoint[]) {
 	return { used, fit };
 }
 
-function chartOf(points: SeriesPoint[]) {
+function chartOf(s: Series, points: SeriesPoint[]) {
 	const used = points.filter(usable);
 	if (used.length < 2) return { used, chart: null };
 	return {
 		used,
 		chart: controlChart(
 			used.map((p) => p.t!),
-			{ baseline: Math.min(BASELINE, used.length) }
+			chartOptions(s, used.length)
 		)
 	};
 }
 
+async function seriesOf(event: RequestEvent, capability: 'read' | 'upload') {
+	const access = await requireProject(event, capability);
+	const s = await findSeries(access.project.id, event.params.name);
+	if (!s) error(404, 'This project has no series of that name.');
+	return { ...access, series: s };
+}
+
 export const load: PageServerLoad = async (event) => {
-	const { project } = await requireProject(event, 'read');
-	const name = event.params.name;
-	const points = await loadSeriesPoints(project.id, name);
-	if (!points.length) error(404, 'No measurements carry this series label.');
-	const view = viewFor(points);
-	const withoutReading = points.filter((p) => !usable(p)).length;
+	const { project, user, series: s } = await seriesOf(event, 'read');
+	// A map loads only its columns; the other kinds need each point's details.
+	const map = s.kind === 'map' ? await loadMapColumns(project.id, s.name) : null;
+	const points = map ? [] : await loadSeriesPoints(project.id, s.name);
+	const count = map ? map.id.length : points.length;
+	const withoutReading = map
+		? map.t.filter((t) => t == null).length
+		: points.filter((p) => !usable(p)).length;
 	return {
-		name,
-		view,
-		count: points.length,
+		series: s,
+		count,
 		withoutReading,
-		map: view === 'map' ? mapOf(points) : null,
-		sweep: view === 'power-sweep' ? sweepOf(points) : null,
-		control: view === 'control-chart' ? { ...chartOf(points), baselineMax: BASELINE } : null
+		subscribed: await isSubscribed(s.id, user.id),
+		candidates: await measurementsOutside(project.id, s.name),
+		map,
+		sweep: s.kind === 'power-sweep' ? sweepOf(points) : null,
+		control: s.kind === 'batch' ? chartOf(s, points) : null,
+		trend: s.kind === 'time' ? points.filter(usable) : null
 	};
+};
+
+export const actions: Actions = {
+	add: async (event) => {
+		const { project, user, series: s } = await seriesOf(event, 'upload');
+		const form = await event.request.formData();
+		const parsed = addMeasurementsForm.safeParse({ ids: form.getAll('ids') });
+		if (!parsed.success) return fieldFailure(400, 'ids', parsed.error.issues[0].message);
+		const added = await addToSeries(project.id, s, parsed.data.ids, { userId: user.id });
+		return { added };
+	},
+	subscribe: async (event) => {
+		const { user, series: s } = await seriesOf(event, 'read');
+		await setSubscribed(s.id, user.id, true);
+		return { subscribed: true };
+	},
+	unsubscribe: async (event) => {
+		const { user, series: s } = await seriesOf(event, 'read');
+		await setSubscribed(s.id, user.id, false);
+		return { subscribed: false };
+	}
 };
