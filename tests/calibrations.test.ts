@@ -7,7 +7,11 @@ import { ROLES, type Role } from '../src/lib/roles';
 import { closeDb, db } from '../src/lib/server/db';
 import { auditLog } from '../src/lib/server/db/schema';
 import { laserWavenumber } from '../src/lib/thermometry/constants';
-import { lampCalibration, radiancePhotonWavenumber } from '../src/lib/thermometry/planck';
+import {
+	lampCalibration,
+	radianceEnergyWavelength,
+	radiancePhotonWavenumber
+} from '../src/lib/thermometry/planck';
 import {
 	trueAreas,
 	wavelengthUniformAxis,
@@ -19,6 +23,7 @@ import {
 	temperatureFromReference
 } from '../src/lib/thermometry/temperature';
 import { APP_URL, Session, signIn } from './support/http';
+import { FIXTURE_PAIRS, fixture, postMeasurement, truth, waitForAnalysis } from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -230,11 +235,13 @@ async function postFile(
 	path: string,
 	fields: Record<string, string>,
 	file: { name: string; text: string },
-	field = 'lamp'
+	field = 'lamp',
+	more: Record<string, { name: string; text: string }> = {}
 ) {
 	const body = new FormData();
 	for (const [k, v] of Object.entries(fields)) body.set(k, v);
-	body.set(field, new File([file.text], file.name, { type: 'text/csv' }));
+	for (const [f, x] of Object.entries({ [field]: file, ...more }))
+		body.set(f, new File([x.text], x.name, { type: 'text/csv' }));
 	const response = await fetch(APP_URL + path, {
 		method: 'POST',
 		headers: { cookie: session.header(), origin: APP_URL, accept: 'text/html' },
@@ -244,6 +251,59 @@ async function postFile(
 	session.take(response);
 	return response;
 }
+
+describe('reference run from a measurement of the project', () => {
+	// The committed Si fixture pair: made at 350 K with C = 1 (fixtures/spectra/truth.json).
+	const si = FIXTURE_PAIRS[0];
+	const trueK = truth.find((t) => t.id === si.id)!.true_temperature_k;
+
+	it('takes R₀, u(R₀) and the band from its reading, and gives back the C it was made with', async () => {
+		const parts = Object.fromEntries(
+			Object.entries(si.files).map(([part, name]) => [part, fixture(name)])
+		);
+		const posted = await postMeasurement(world.token, parts, {
+			...si.metadata,
+			c_factor: 1,
+			u_c_factor: 0,
+			label: 'reference pair on the heated stage'
+		});
+		expect(posted.status).toBe(202);
+		const { id } = await posted.json();
+		expect((await waitForAnalysis(world.token, id)).status).toBe('done');
+
+		const fields = { measurement: id, t0_k: String(trueK), u_t0_k: '0.5' };
+		// The fixture was taken at 532 nm; this profile's laser is 532.1 nm.
+		const other = await sessions.analyst.post(`${photonPath}?/addReference`, fields);
+		expect(other.status).toBe(400);
+		expect(await other.text()).toMatch(/taken at 532 nm, the profile(&#39;|')s laser is 532.1 nm/);
+
+		const created = await sessions.analyst.post(`${base}/instruments?/create`, {
+			name: 'Stage bench 532',
+			laser_nm: '532',
+			detector: 'photon-counting',
+			filter_cutoff_cm1: '90',
+			optics_notes: '',
+			notes: ''
+		});
+		const stage = created.headers.get('location')!;
+		const added = await sessions.analyst.post(`${stage}?/addReference`, fields);
+		expect(added.status).toBe(303);
+		const [cal] = await rows(stage);
+		// The pair's own C (= 1) lies within 2 u(C) of the calibrated one.
+		expect(Math.abs(cal.c - 1)).toBeLessThan(2 * cal.uC);
+		expect(cal.uC).toBeGreaterThan(0);
+		const html = await (await sessions.viewer.get(stage)).text();
+		expect(html).toContain(`/measurements/${id}?reading=`);
+		expect(html).toContain('band 520.7 cm⁻¹');
+
+		const unknown = await sessions.analyst.post(`${stage}?/addReference`, {
+			...fields,
+			measurement: '00000000-0000-4000-8000-000000000000'
+		});
+		expect(unknown.status).toBe(400);
+		expect(await unknown.text()).toContain('no analysed measurement with that id');
+	});
+});
 
 describe('white-light lamp calibration (physics.md §1.3b)', () => {
 	// An invented instrument whose response falls towards the red, seen with a 2856 K lamp.
@@ -295,6 +355,58 @@ describe('white-light lamp calibration (physics.md §1.3b)', () => {
 		expect(await (await sessions.viewer.get(photonPath)).text()).toContain(
 			'lamp.csv: lamp at 2856'
 		);
+	});
+
+	it('gives the same C from a certified radiance table of that lamp, and plots the data', async () => {
+		// The certificate as Planck's law gives a 2856 K blackbody's energy radiance per wavelength
+		// (W m⁻² sr⁻¹ nm⁻¹) every nm; checked against CODATA's Wien and Stefan–Boltzmann constants in
+		// src/lib/thermometry/planck.spec.ts.
+		const nm = Array.from({ length: 141 }, (_, i) => 490 + i);
+		const certificate =
+			'wavelength_nm,radiance\n' +
+			nm
+				.map((w) => `${w},${(radianceEnergyWavelength(w * 1e-9, 2856) * 1e-9).toPrecision(12)}`)
+				.join('\n');
+		const tableFields = {
+			reference: 'certified-table',
+			axis: 'raman-shift',
+			u_table_percent: '1.5',
+			u_percent: '0.5',
+			mode_cm1: String(SI)
+		};
+		const missing = await postFile(sessions.analyst, `${photonPath}?/addLamp`, tableFields, {
+			name: 'lamp.csv',
+			text
+		});
+		expect(missing.status).toBe(400);
+		expect(await missing.text()).toContain('certified radiance table');
+		const added = await postFile(
+			sessions.analyst,
+			`${photonPath}?/addLamp`,
+			tableFields,
+			{ name: 'lamp.csv', text },
+			'lamp',
+			{ radiance: { name: 'certificate.csv', text: certificate } }
+		);
+		expect(added.status).toBe(303);
+		const [byTable, byTc] = await rows(photonPath);
+		expect(Math.abs(byTable.c - byTc.c) / byTc.c).toBeLessThan(1e-5);
+		// u(C) from the table: √2 · 1.5 % of C, beside the curve's √2 · 0.5 %.
+		expect(byTable.uC).toBeCloseTo(byTable.c * Math.SQRT2 * Math.hypot(0.015, 0.005), 6);
+		const html = await (await sessions.viewer.get(photonPath)).text();
+		expect(html).toContain('certified radiance certificate.csv');
+		expect(html).toContain(`data-testid="calibration-plot-${byTable.id}"`);
+		// A table that stops short of the lamp spectrum is refused with the reason.
+		const short = await postFile(
+			sessions.analyst,
+			`${photonPath}?/addLamp`,
+			tableFields,
+			{ name: 'lamp.csv', text },
+			'lamp',
+			{ radiance: { name: 'short.csv', text: certificate.split('\n').slice(0, 40).join('\n') } }
+		);
+		expect(short.status).toBe(400);
+		expect(await short.text()).toContain('outside the radiance table');
 	});
 
 	it('refuses a missing file and an unreadable one beside the file field', async () => {

@@ -7,7 +7,8 @@ import {
 	radianceEnergyWavenumber,
 	radiancePhotonWavelength,
 	radiancePhotonWavenumber,
-	responseRatio
+	responseRatio,
+	tableLampCalibration
 } from './planck';
 import { wavelengthUniformAxis } from './synthetic';
 import { EngineError } from './types';
@@ -176,13 +177,90 @@ describe('lamp calibration budget', () => {
 			uRelative: 0.005
 		});
 		const numeric = Math.abs((at(2857) - at(2855)) / 2) * 50;
-		expect(rel(cal.budget.colourTemperature, numeric)).toBeLessThan(1e-3);
+		expect(rel(cal.budget.colourTemperature!, numeric)).toBeLessThan(1e-3);
 		expect(rel(cal.budget.curve, cal.c * Math.SQRT2 * 0.005)).toBeLessThan(1e-12);
-		expect(rel(cal.u_c, Math.hypot(cal.budget.curve, cal.budget.colourTemperature))).toBeLessThan(
+		expect(rel(cal.u_c, Math.hypot(cal.budget.curve, cal.budget.colourTemperature!))).toBeLessThan(
 			1e-12
 		);
 		// Lamp really at 3000 K read as 2856 K: C is off by the Planck ratio, not 1.
 		expect(cal.c).not.toBeCloseTo(1, 2);
 		expect(at(3000)).toBeCloseTo(1, 3);
+	});
+});
+
+describe('lamp with a certified radiance table', () => {
+	// The same synthetic lamp as above, seen through an invented falling response.
+	const truth = (shift: number) => 0.6 + 0.3 * Math.cos((shift + 200) / 900) - 1e-4 * shift;
+	const laserNm = 532;
+	const tc = 2856; // CIE illuminant A's colour temperature (CIE 15, common practice)
+	const nuL = laserWavenumber(laserNm);
+	const axis = wavelengthUniformAxis(laserNm, -1200, 1200, 801);
+	const counts = Array.from(axis, (s, i) => {
+		const n = axis.length;
+		const width =
+			(axis[Math.min(i + 1, n - 1)] - axis[Math.max(i - 1, 0)]) / (i === 0 || i === n - 1 ? 1 : 2);
+		return 1e-12 * truth(s) * radiancePhotonWavenumber((nuL - s) * 100, tc) * width * 100;
+	});
+	const lamp = { shift: axis, counts };
+	// A certificate in energy radiance per wavelength every 0.5 nm, as Planck's law gives it
+	// (in W m⁻² sr⁻¹ nm⁻¹; the unit drops out of C).
+	const wavelengthNm = Array.from({ length: 401 }, (_, i) => 480 + 0.5 * i);
+	const table = {
+		wavelengthNm,
+		radiance: wavelengthNm.map((nm) => radianceEnergyWavelength(nm * 1e-9, tc) * 1e-9)
+	};
+
+	it('gives the C of the colour-temperature route when the table is that blackbody', () => {
+		// Source: Planck's law (CODATA h, c, k), already checked against Wien's b and σ above.
+		const byTable = tableLampCalibration({
+			lamp,
+			laserNm,
+			table,
+			uTableRelative: 0.01,
+			modeCm1: 520.7,
+			uRelative: 0.005
+		});
+		const byTc = lampCalibration({
+			lamp,
+			laserNm,
+			colourTemperatureK: tc,
+			uColourTemperatureK: 0,
+			modeCm1: 520.7,
+			uRelative: 0.005
+		});
+		expect(rel(byTable.c, byTc.c)).toBeLessThan(1e-5);
+		expect(rel(byTable.c, truth(-520.7) / truth(520.7))).toBeLessThan(1e-4);
+		expect(rel(byTable.budget.radianceTable!, byTable.c * Math.SQRT2 * 0.01)).toBeLessThan(1e-12);
+		expect(
+			rel(byTable.u_c, Math.hypot(byTable.budget.curve, byTable.budget.radianceTable!))
+		).toBeLessThan(1e-12);
+	});
+
+	it('refuses a lamp spectrum that reaches past the table, and a table out of order', () => {
+		const short = {
+			wavelengthNm: wavelengthNm.slice(0, 100),
+			radiance: table.radiance.slice(0, 100)
+		};
+		expect(() =>
+			tableLampCalibration({
+				lamp,
+				laserNm,
+				table: short,
+				uTableRelative: 0,
+				modeCm1: 520.7,
+				uRelative: 0
+			})
+		).toThrow(/outside the radiance table/);
+		const shuffled = { wavelengthNm: [500, 490], radiance: [1, 1] };
+		expect(() =>
+			tableLampCalibration({
+				lamp,
+				laserNm,
+				table: shuffled,
+				uTableRelative: 0,
+				modeCm1: 520.7,
+				uRelative: 0
+			})
+		).toThrow(EngineError);
 	});
 });

@@ -65,18 +65,18 @@ export interface ResponseCurve {
 }
 
 /**
- * Relative response from a lamp of known colour temperature seen through the instrument:
- * counts per pixel ÷ (photon radiance per wavenumber × the pixel's width in wavenumber). Photon
- * units because a CCD counts photons, and the pixel width because a pixel's counts are an
- * integral over it (pixels uniform in wavelength are not uniform in shift).
+ * Relative response from a lamp seen through the instrument: counts per pixel ÷ (the lamp's
+ * photon radiance per wavenumber × the pixel's width in wavenumber). Photon units because a CCD
+ * counts photons, and the pixel width because a pixel's counts are an integral over it (pixels
+ * uniform in wavelength are not uniform in shift). `photonRadiance` takes an absolute wavenumber
+ * in m⁻¹; only its shape matters, since the curve is scaled to a largest value of 1.
  */
-export function lampResponse(
+export function lampResponseWith(
 	lamp: LampSpectrum,
 	laserNm: number,
-	colourTemperatureK: number
+	photonRadiance: (nuM1: number) => number
 ): ResponseCurve {
 	positive('laser wavelength', laserNm);
-	positive('colour temperature', colourTemperatureK);
 	const n = lamp.shift.length;
 	if (n < 2 || lamp.counts.length !== n) {
 		throw new EngineError(
@@ -104,13 +104,73 @@ export function lampResponse(
 		const lo = lamp.shift[Math.max(i - 1, 0)];
 		const hi = lamp.shift[Math.min(i + 1, n - 1)];
 		const widthCm1 = (hi - lo) / (i === 0 || i === n - 1 ? 1 : 2);
-		const photons = radiancePhotonWavenumber(absCm1 * 100, colourTemperatureK) * widthCm1 * 100;
+		const photons = photonRadiance(absCm1 * 100) * widthCm1 * 100;
 		shift.push(lamp.shift[i]);
 		raw.push(lamp.counts[i] / photons);
 	}
 	const top = Math.max(...raw);
 	if (!(top > 0)) throw new EngineError('bad-lamp', 'The lamp spectrum has no positive counts.');
 	return { shift, response: raw.map((r) => r / top) };
+}
+
+/** Relative response from a lamp of known colour temperature (a blackbody of that T). */
+export function lampResponse(
+	lamp: LampSpectrum,
+	laserNm: number,
+	colourTemperatureK: number
+): ResponseCurve {
+	positive('colour temperature', colourTemperatureK);
+	return lampResponseWith(lamp, laserNm, (nu) => radiancePhotonWavenumber(nu, colourTemperatureK));
+}
+
+/**
+ * A lamp's certified spectral radiance: energy radiance per unit wavelength at ascending
+ * wavelengths (nm), in any one unit (only its shape is used), as calibration certificates give it.
+ */
+export interface RadianceTable {
+	wavelengthNm: number[];
+	radiance: number[];
+}
+
+/**
+ * The table as photon radiance per wavenumber, linearly interpolated in wavelength:
+ * L_p,ν̃ = L_p,λ·|dλ/dν̃| = (L_λ·λ/hc)·λ² = L_λ·λ³/(hc). Outside the table there is no value.
+ */
+export function photonRadianceFromTable(table: RadianceTable): (nuM1: number) => number {
+	const { wavelengthNm: w, radiance: l } = table;
+	if (w.length < 2 || l.length !== w.length) {
+		throw new EngineError(
+			'bad-radiance-table',
+			'The radiance table needs at least two rows, each with a wavelength and a radiance.'
+		);
+	}
+	for (let i = 0; i < w.length; i++) {
+		if (i > 0 && !(w[i] > w[i - 1]))
+			throw new EngineError(
+				'bad-radiance-table',
+				'The radiance table’s wavelengths must be strictly ascending.'
+			);
+		if (!(l[i] > 0) || !Number.isFinite(l[i]))
+			throw new EngineError(
+				'bad-radiance-table',
+				`The radiance at ${w[i]} nm must be a positive number (got ${l[i]}).`
+			);
+	}
+	return (nuM1: number) => {
+		const nm = 1e9 / nuM1;
+		if (nm < w[0] || nm > w[w.length - 1]) {
+			throw new EngineError(
+				'lamp-outside-table',
+				`The lamp spectrum reaches ${nm.toFixed(1)} nm, outside the radiance table (${w[0]}–${w[w.length - 1]} nm); crop the lamp spectrum or use a wider table.`
+			);
+		}
+		let hi = 1;
+		while (w[hi] < nm) hi++;
+		const f = (nm - w[hi - 1]) / (w[hi] - w[hi - 1]);
+		const radiance = l[hi - 1] + f * (l[hi] - l[hi - 1]);
+		const lambdaM = nm * 1e-9;
+		return (radiance * lambdaM ** 3) / (PLANCK_H * SPEED_OF_LIGHT_C);
+	};
 }
 
 /**
@@ -147,8 +207,8 @@ export interface LampCalibration {
 	curve: ResponseCurve;
 	c: number;
 	u_c: number;
-	/** Contributions to u(C): from the curve's own scatter and from u(T_c). */
-	budget: { curve: number; colourTemperature: number };
+	/** Contributions to u(C): the curve's own scatter, and u(T_c) or the radiance table's u. */
+	budget: { curve: number; colourTemperature?: number; radianceTable?: number };
 }
 
 /**
@@ -172,5 +232,33 @@ export function lampCalibration(input: LampCalibrationInput): LampCalibration {
 		c,
 		u_c: Math.hypot(u_c, fromT),
 		budget: { curve: u_c, colourTemperature: fromT }
+	};
+}
+
+export interface TableLampCalibrationInput {
+	lamp: LampSpectrum;
+	laserNm: number;
+	table: RadianceTable;
+	/** Relative standard uncertainty of the certified radiance, e.g. 0.01 for 1 %. */
+	uTableRelative: number;
+	modeCm1: number;
+	uRelative: number;
+}
+
+/**
+ * C from a lamp with a certified radiance table instead of a colour temperature. The table's
+ * uncertainty enters C through the radiance at the two band wavelengths, taken as independent
+ * (the certificate rarely states their correlation; independence is the larger u):
+ * u_rel(C) from the table = √2 · u_rel(L).
+ */
+export function tableLampCalibration(input: TableLampCalibrationInput): LampCalibration {
+	const curve = lampResponseWith(input.lamp, input.laserNm, photonRadianceFromTable(input.table));
+	const { c, u_c } = responseRatio(curve, input.modeCm1, input.uRelative);
+	const fromTable = c * Math.SQRT2 * input.uTableRelative;
+	return {
+		curve,
+		c,
+		u_c: Math.hypot(u_c, fromTable),
+		budget: { curve: u_c, radianceTable: fromTable }
 	};
 }

@@ -26,20 +26,35 @@ export type CalibrationInputs =
 			modeCm1: number;
 			laserNm: number;
 			exponent: 3 | 4;
+			/** The reference pair in this project, when R₀ was taken from its reading. */
+			measurementId?: string;
+			readingId?: string;
 	  }
-	| { method: 'response-curve'; uRelative: number; points: number; modeCm1: number; file: string }
+	| {
+			method: 'response-curve';
+			uRelative: number;
+			points: number;
+			modeCm1: number;
+			file: string;
+			/** The curve, thinned for its plot. */
+			plot?: { shift: number[]; response: number[] };
+	  }
 	| {
 			method: 'lamp';
 			laserNm: number;
-			colourTemperatureK: number;
-			uColourTemperatureK: number;
+			/** The colour temperature and its u, K; null when a certified radiance table was used. */
+			colourTemperatureK: number | null;
+			uColourTemperatureK: number | null;
+			radianceTable?: { file: string; points: number; uRelative: number; rangeNm: number[] };
 			/** The band C was read at, cm⁻¹, and the lamp file it was read from. */
 			modeCm1: number;
 			uRelative: number;
 			file: string;
 			points: number;
-			/** Contributions to u(C): the curve's scatter and u(T_c). */
-			budget: { curve: number; colourTemperature: number };
+			/** Contributions to u(C): the curve's scatter, and u(T_c) or the table's u. */
+			budget: { curve: number; colourTemperature?: number; radianceTable?: number };
+			/** Lamp counts, expected photons per pixel and response, each scaled to 1, thinned. */
+			plot?: { shift: number[]; counts: number[]; expected: number[]; response: number[] };
 	  };
 
 export const CALIBRATION_METHODS = ['constant', 'reference-run', 'response-curve', 'lamp'] as const;

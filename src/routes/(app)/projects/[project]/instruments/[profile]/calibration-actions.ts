@@ -50,6 +50,7 @@ async function add(event: RequestEvent, which: Which) {
 			await createConstantCalibration(project.id, id, form.data, user.id);
 		} else if (which === 'lamp') {
 			const copy = event.request.clone();
+			const copy2 = event.request.clone();
 			const form = await parseForm(event.request, lampForm);
 			if (!form.ok) return fail(400, { calibration: which, ...form.failure.data });
 			const upload = await readUpload(
@@ -63,7 +64,22 @@ async function add(event: RequestEvent, which: Which) {
 					errors: { lamp: [upload.message] },
 					values: form.data
 				});
-			await createLampCalibration(project.id, id, form.data, upload, user.id);
+			let table: { name: string; text: string } | undefined;
+			if (form.data.reference === 'certified-table') {
+				const got = await readUpload(
+					copy2,
+					'radiance',
+					'the certified radiance table (wavelength in nm, spectral radiance)'
+				);
+				if ('message' in got)
+					return fail(400, {
+						calibration: which,
+						errors: { radiance: [got.message] },
+						values: form.data
+					});
+				table = got;
+			}
+			await createLampCalibration(project.id, id, form.data, upload, user.id, table);
 		} else if (which === 'curve') {
 			const copy = event.request.clone();
 			const form = await parseForm(event.request, curveForm);
