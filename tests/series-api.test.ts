@@ -7,7 +7,7 @@ import { closeDb, db } from '../src/lib/server/db';
 import { measurements, series } from '../src/lib/server/db/schema';
 import { createToken } from '../src/lib/server/tokens';
 import { APP_URL, signIn } from './support/http';
-import { getJson, postMeasurement, syntheticCsv } from './support/pairs';
+import { getJson, postMeasurement, syntheticCsv, waitForAnalysis } from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -113,6 +113,8 @@ describe('GET /api/v1/series/{name}', () => {
 	});
 });
 
+const uploaded: string[] = [];
+
 describe('a series named by an upload', () => {
 	it('is made with the kind its metadata suggests, and holds the measurement', async () => {
 		const cases = [
@@ -125,6 +127,7 @@ describe('a series named by an upload', () => {
 			const response = await upload({ series: c.name, ...c.extra });
 			expect(response.status).toBe(202);
 			const { id } = await response.json();
+			uploaded.push(id);
 			const { status, body } = await getJson(
 				world.token,
 				`/api/v1/series/${encodeURIComponent(c.name)}`
@@ -140,6 +143,32 @@ describe('a series named by an upload', () => {
 
 describe('the series page', () => {
 	const index = () => `/projects/${world.project.slug}/series`;
+
+	it('shows the view the kind decides, not the one the data suggests', async () => {
+		for (const id of uploaded) await waitForAnalysis(world.token, id);
+		const viewer = await signIn(world.people.viewer.email, PASSWORD);
+		const html = async (name: string) =>
+			(await viewer.get(`${index()}/${encodeURIComponent(name)}`)).text();
+		expect(await html('auto map')).toContain('data-testid="hottest"');
+		expect(await html('auto time')).toContain('data-testid="trend"');
+		expect(await html('auto sweep')).toContain('A power sweep needs readings at two or more');
+		expect(await html('auto batch')).toContain('A control chart needs two or more readings');
+		// The same single placed measurement, moved into a time series, is drawn as a trend.
+		const owner = await signIn(world.people.owner.email, PASSWORD);
+		const map = (await db.query.series.findFirst({
+			where: and(eq(series.projectId, world.project.id), eq(series.name, 'auto map'))
+		}))!;
+		const edit = await owner.post(`${index()}?edit=${map.id}&/update`, {
+			id: String(map.id),
+			name: 'auto map',
+			kind: 'time',
+			baseline_size: ''
+		});
+		expect(edit.status).toBe(303);
+		const after = await html('auto map');
+		expect(after).toContain('data-testid="trend"');
+		expect(after).not.toContain('data-testid="hottest"');
+	});
 
 	it('lets an analyst create a series but not set specification limits', async () => {
 		const analyst = await signIn(world.people.analyst.email, PASSWORD);
