@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb } from '../src/lib/server/db';
 import { C2_CM_K } from '../src/lib/thermometry/constants';
-import { Session, signIn } from './support/http';
+import { APP_URL, Session, signIn } from './support/http';
 import {
 	FIXTURE_PAIRS,
 	fixture,
@@ -143,6 +143,23 @@ describe('a measurement that names a profile', () => {
 		);
 		expect(html).toMatch(/Bench P<\/a>, version 2/);
 		expect(html).toContain(`calibration #${firstCalibration}, constant`);
+	});
+});
+
+describe('the profiles API', () => {
+	it('lists the project’s profiles with their newest version and active calibrations', async () => {
+		const { status, body } = await getJson(world.token, '/api/v1/profiles');
+		expect(status).toBe(200);
+		const bench = body.profiles.find((p: { name: string }) => p.name === 'Bench P');
+		expect(bench).toMatchObject({ laser_nm: 532, detector: 'photon-counting', version: 2 });
+		expect(bench.calibrations.map((c: { id: number }) => c.id)).toContain(firstCalibration);
+		const anonymous = await fetch(`${APP_URL}/api/v1/profiles`);
+		expect(anonymous.status).toBe(401);
+		expect(anonymous.headers.get('content-type')).toContain('application/problem+json');
+		// Another project's token sees its own profiles only.
+		const other = await makeWorld('profile-readings-other');
+		const theirs = await getJson(other.token, '/api/v1/profiles');
+		expect(theirs.body.profiles).toEqual([]);
 	});
 });
 

@@ -99,6 +99,30 @@ const modeResult = z.object({
 	reduced_chi2: z.number()
 });
 
+const profileList = z.object({
+	profiles: z.array(
+		z.object({
+			id: z.number().int(),
+			name: z.string(),
+			version: z.number().int(),
+			laser_nm: z.number(),
+			detector: z.enum(['photon-counting', 'energy']),
+			filter_cutoff_cm1: z.number(),
+			calibrations: z.array(
+				z.object({
+					id: z.number().int(),
+					method: z.enum(['constant', 'reference-run', 'response-curve', 'lamp']),
+					c: z.number(),
+					u_c: z.number(),
+					mode_cm1: nullableNumber.describe('The band it holds for; null for a constant.'),
+					valid_from: z.iso.datetime(),
+					valid_until: z.iso.datetime().nullable()
+				})
+			)
+		})
+	)
+});
+
 export const readingResponse = z
 	.object({
 		id: z.string(),
@@ -290,6 +314,19 @@ export function openApiDocument(origin: string) {
 					responses: {
 						'200': { description: 'The token is valid.', content: jsonBody('Whoami') },
 						...errors(401, 429)
+					}
+				}
+			},
+			'/api/v1/profiles': {
+				get: {
+					tags: ['measurements'],
+					operationId: 'listProfiles',
+					summary: 'The instrument profiles a measurement may name, with their active calibrations',
+					description:
+						'Each profile’s newest version. A measurement’s `profile` takes the name or id; its `calibration` one of the ids listed (else the newest active one that holds for the band). Needs the `measurements:read` scope.',
+					responses: {
+						'200': { description: 'The project’s profiles.', content: jsonBody('ProfileList') },
+						...errors(401, 403, 429)
 					}
 				}
 			},
@@ -495,6 +532,7 @@ export function openApiDocument(origin: string) {
 				ListFilters: schema(listFilters),
 				Uploads: schema(uploadsResponse, 'output'),
 				Whoami: schema(whoamiResponse, 'output'),
+				ProfileList: schema(profileList, 'output'),
 				MeasurementCreated: schema(measurementCreated, 'output'),
 				Measurement: schema(measurementResponse, 'output'),
 				MeasurementList: schema(measurementList, 'output'),

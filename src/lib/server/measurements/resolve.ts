@@ -69,6 +69,27 @@ export async function profileCalibrations(profileId: number) {
 	return rows.map(asCandidate);
 }
 
+/** The same, in the API's snake_case names (GET /api/v1/profiles). */
+export async function profilesJson(projectId: number) {
+	return (await profilesForUpload(projectId)).map((p) => ({
+		id: p.id,
+		name: p.name,
+		version: p.version,
+		laser_nm: p.laserNm,
+		detector: p.detector,
+		filter_cutoff_cm1: p.filterCutoffCm1,
+		calibrations: p.calibrations.map((c) => ({
+			id: c.id,
+			method: c.method,
+			c: c.c,
+			u_c: c.uC,
+			mode_cm1: c.modeCm1,
+			valid_from: c.validFrom.toISOString(),
+			valid_until: c.validUntil?.toISOString() ?? null
+		}))
+	}));
+}
+
 /** The project's profiles with their newest version and active calibrations, for the upload page. */
 export async function profilesForUpload(projectId: number) {
 	const profiles = await listProfiles(projectId);
@@ -84,12 +105,15 @@ export async function profilesForUpload(projectId: number) {
 				filterCutoffCm1: p.latest!.filterCutoffCm1,
 				calibrations: (await profileCalibrations(p.id))
 					.filter((c) => c.status === 'active')
+					.sort((a, b) => b.validFrom.getTime() - a.validFrom.getTime() || b.id - a.id)
 					.map((c) => ({
 						id: c.id,
 						method: c.method,
 						c: c.c,
 						uC: c.uC,
-						modeCm1: c.modeCm1 ?? null
+						modeCm1: c.modeCm1 ?? null,
+						validFrom: c.validFrom,
+						validUntil: c.validUntil
 					}))
 			}))
 	);

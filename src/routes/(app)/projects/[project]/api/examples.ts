@@ -23,6 +23,20 @@ curl -sS -X POST ${origin}/api/v1/measurements \\
               "dark_counts":300,"c_factor":1,"u_c_factor":0.02,"label":"spot A"};type=application/json'`;
 }
 
+export function curlProfiles(origin: string) {
+	return `# Set the instrument up once on the Instruments page; then name it instead of laser, detector and C.
+curl -sS -H "Authorization: Bearer $PHONOTHERM_TOKEN" ${origin}/api/v1/profiles
+# → {"profiles":[{"id":1,"name":"Confocal bench 532","version":1,"laser_nm":532, …,
+#                 "calibrations":[{"id":2,"method":"lamp","c":1.0001,"u_c":0.008, …}]}]}
+
+curl -sS -X POST ${origin}/api/v1/measurements \\
+  -H "Authorization: Bearer $PHONOTHERM_TOKEN" -H "Idempotency-Key: $(uuidgen)" \\
+  -F stokes=@si-532-stokes.csv -F anti_stokes=@si-532-anti-stokes.csv \\
+  -F 'metadata={"profile":"Confocal bench 532","material":"silicon","exposure_stokes_s":1,
+              "exposure_anti_stokes_s":4,"dark_counts":300,"label":"spot A"};type=application/json'
+# The reading then names the profile version and calibration it used ("profile", "calibration").`;
+}
+
 export const uploadAnswer = `HTTP/1.1 202 Accepted
 {"id":"7c1e…","status":"queued","created":true,
  "links":{"self":".../api/v1/measurements/7c1e…","reading":".../api/v1/measurements/7c1e…/reading"}}`;
