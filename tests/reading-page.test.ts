@@ -8,7 +8,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
 import { readings } from '../src/lib/server/db/schema';
 import { APP_URL, signIn, type Session } from './support/http';
+import { getJson, postMeasurement, waitForAnalysis } from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
+import { syntheticPair, type SyntheticSpec } from '../src/lib/thermometry/synthetic';
 
 const FIXTURES = new URL('../fixtures/spectra/', import.meta.url);
 const STOKES = 'si-532-stokes.csv';
@@ -174,5 +176,64 @@ describe('the reading page', () => {
 		const old = await member.get(`${path()}?reading=${before.id}`);
 		expect(old.status).toBe(200);
 		expect(await old.text()).toContain('an earlier reading');
+	}, 60_000);
+});
+
+describe('a measurement with several modes (issue 5, item 4)', () => {
+	// Two bands of one invented crystal at 568 and 734 cm⁻¹, both at 400 K, made by the engine's
+	// generator on shared axes and added pixel by pixel (sums of Poisson counts stay Poisson).
+	const T = 400;
+	const spec = (modeCm1: number, seed: number): SyntheticSpec => ({
+		laserNm: 532,
+		modeCm1,
+		temperatureK: T,
+		exponent: 3,
+		lineshape: 'lorentzian',
+		fwhmCm1: 5,
+		stokesCounts: 2e5,
+		exposureS: { stokes: 1, antiStokes: 2 },
+		window: { halfRangeCm1: 250, points: 1600, centreCm1: 651 },
+		seed
+	});
+	const csv = (shift: Float64Array, counts: Float64Array) =>
+		'raman_shift_cm-1,counts\n' +
+		Array.from(shift, (x, i) => `${x.toFixed(4)},${Math.round(counts[i])}`).join('\n');
+
+	it('shows each mode’s temperature, the weighted mean and the consistency check', async () => {
+		const a = syntheticPair(spec(568, 11));
+		const b = syntheticPair(spec(734, 12));
+		const sum = (x: Float64Array, y: Float64Array) => x.map((v, i) => v + y[i]);
+		const parts = {
+			stokes: csv(a.stokes.raw.shift, sum(a.stokes.raw.counts, b.stokes.raw.counts)),
+			anti_stokes: csv(
+				a.antiStokes.raw.shift,
+				sum(a.antiStokes.raw.counts, b.antiStokes.raw.counts)
+			)
+		};
+		const posted = await postMeasurement(world.token, parts, {
+			laser_nm: 532,
+			modes: [568, 734],
+			exposure_stokes_s: 1,
+			exposure_anti_stokes_s: 2,
+			c_factor: 1,
+			u_c_factor: 0.01,
+			label: 'two-mode crystal'
+		});
+		expect(posted.status).toBe(202);
+		const { id: twoModes } = await posted.json();
+		expect((await waitForAnalysis(world.token, twoModes)).status).toBe('done');
+		const { body: r } = await getJson(world.token, `/api/v1/measurements/${twoModes}/reading`);
+		expect(r.modes).toHaveLength(2);
+		// Each mode, and the mean, holds the generator's temperature within its expanded uncertainty.
+		for (const m of r.modes)
+			expect(Math.abs(m.temperature_k - T)).toBeLessThan(2 * m.u_temperature_k);
+		expect(Math.abs(r.temperature_k - T)).toBeLessThan(r.expanded_uncertainty_k);
+		expect(r.birge_ratio).toBeGreaterThan(0);
+		const html = await (
+			await member.get(`/projects/${world.project.slug}/measurements/${twoModes}`)
+		).text();
+		expect(html).toMatch(/Weighted mean of <span class="num">2<\/span> modes/);
+		expect(html).toContain('Birge ratio of the modes');
+		for (const m of r.modes) expect(html).toContain(`${m.mode_cm1} cm⁻¹`);
 	}, 60_000);
 });

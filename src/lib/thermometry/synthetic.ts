@@ -23,8 +23,12 @@ export interface SyntheticSpec {
 	/** Expected total Stokes band counts in one exposure. */
 	stokesCounts: number;
 	exposureS?: { stokes: number; antiStokes: number };
-	/** Window half-range around ±mode and number of pixels per window. */
-	window?: { halfRangeCm1?: number; points?: number };
+	/**
+	 * Window half-range around ±centre (the mode unless given) and number of pixels per window.
+	 * Pairs of different modes on one centre share their axes, so their counts add up to one
+	 * spectrum with several bands.
+	 */
+	window?: { halfRangeCm1?: number; points?: number; centreCm1?: number };
 	/**
 	 * Fluorescence/background in counts per pixel per exposure at the band position, its linear
 	 * slope (fraction per cm⁻¹) and curvature (fraction per cm⁻², a parabola). The anti-Stokes side
@@ -120,7 +124,7 @@ function makeWindow(side: Side, spec: SyntheticSpec, rng: Rng): SyntheticWindow 
 	const st = side === 'stokes';
 	const half = spec.window?.halfRangeCm1 ?? 250;
 	const points = spec.window?.points ?? 2000;
-	const m = spec.modeCm1;
+	const m = spec.window?.centreCm1 ?? spec.modeCm1;
 	const shift = st
 		? wavelengthUniformAxis(spec.laserNm, Math.max(m - half, 1), m + half, points)
 		: wavelengthUniformAxis(spec.laserNm, -m - half, Math.min(-m + half, -1), points);
