@@ -16,13 +16,12 @@ import { recordAudit } from './audit';
 import { db } from './db';
 import {
 	calibrations,
-	instrumentProfiles,
 	instrumentProfileVersions,
 	measurements,
 	readings,
 	type CalibrationInputs
 } from './db/schema';
-import { InstrumentError } from './instruments';
+import { InstrumentError, profileWithNewestVersion } from './instruments';
 
 /**
  * Response calibrations of an instrument profile. The numbers come from the engine
@@ -196,16 +195,7 @@ export const MAX_LAMP_BYTES = 5 * 1024 * 1024;
 
 /** The profile with its newest version, inside the caller's transaction; 404 when absent. */
 async function lockProfile(tx: Pick<typeof db, 'select'>, projectId: number, profileId: number) {
-	const [row] = await tx
-		.select({ profile: instrumentProfiles, version: instrumentProfileVersions })
-		.from(instrumentProfiles)
-		.innerJoin(
-			instrumentProfileVersions,
-			eq(instrumentProfileVersions.profileId, instrumentProfiles.id)
-		)
-		.where(and(eq(instrumentProfiles.projectId, projectId), eq(instrumentProfiles.id, profileId)))
-		.orderBy(desc(instrumentProfileVersions.version))
-		.limit(1);
+	const row = await profileWithNewestVersion(tx, projectId, profileId);
 	if (!row) throw new InstrumentError('profile', 'No such profile in this project.', 404);
 	return row;
 }

@@ -91,6 +91,30 @@ export async function listProfiles(projectId: number) {
 	});
 }
 
+/** A profile of the project, by id or name, with its newest version; null when it is not there. */
+export async function profileWithNewestVersion(
+	executor: Pick<typeof db, 'select'>,
+	projectId: number,
+	ref: number | string
+) {
+	const [row] = await executor
+		.select({ profile: instrumentProfiles, version: instrumentProfileVersions })
+		.from(instrumentProfiles)
+		.innerJoin(
+			instrumentProfileVersions,
+			eq(instrumentProfileVersions.profileId, instrumentProfiles.id)
+		)
+		.where(
+			and(
+				eq(instrumentProfiles.projectId, projectId),
+				typeof ref === 'number' ? eq(instrumentProfiles.id, ref) : eq(instrumentProfiles.name, ref)
+			)
+		)
+		.orderBy(desc(instrumentProfileVersions.version))
+		.limit(1);
+	return row ?? null;
+}
+
 /** A profile of the project with all its versions, newest first; null when it is not there. */
 export async function profileOf(projectId: number, profileId: number) {
 	const [profile] = await db

@@ -1,4 +1,4 @@
-import { and, desc, eq } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import {
 	chooseCalibration,
 	appliesToBand,
@@ -11,13 +11,8 @@ import {
 	type MeasurementRequest
 } from '../../measurement-metadata';
 import { db } from '../db';
-import {
-	calibrations,
-	instrumentProfiles,
-	instrumentProfileVersions,
-	type CalibrationInputs
-} from '../db/schema';
-import { listProfiles, resolveMaterial } from '../instruments';
+import { calibrations, instrumentProfileVersions, type CalibrationInputs } from '../db/schema';
+import { listProfiles, profileWithNewestVersion, resolveMaterial } from '../instruments';
 import { problem } from '../problem';
 
 /**
@@ -45,28 +40,25 @@ export const asCandidate = (c: CalibrationRow): CalibrationRow & CalibrationCand
 	modeCm1: calibrationMode(c.inputs)
 });
 
-async function findProfile(projectId: number, ref: number | string) {
-	const [row] = await db
-		.select({ profile: instrumentProfiles, version: instrumentProfileVersions })
-		.from(instrumentProfiles)
-		.innerJoin(
-			instrumentProfileVersions,
-			eq(instrumentProfileVersions.profileId, instrumentProfiles.id)
-		)
-		.where(
-			and(
-				eq(instrumentProfiles.projectId, projectId),
-				typeof ref === 'number' ? eq(instrumentProfiles.id, ref) : eq(instrumentProfiles.name, ref)
-			)
-		)
-		.orderBy(desc(instrumentProfileVersions.version))
-		.limit(1);
-	return row ?? null;
-}
-
 export async function profileCalibrations(profileId: number) {
 	const rows = await db.select().from(calibrations).where(eq(calibrations.profileId, profileId));
 	return rows.map(asCandidate);
+}
+
+/** A profile's active calibrations, most recently begun first, as the screens list them. */
+async function activeCalibrations(profileId: number) {
+	return (await profileCalibrations(profileId))
+		.filter((c) => c.status === 'active')
+		.sort((a, b) => b.validFrom.getTime() - a.validFrom.getTime() || b.id - a.id)
+		.map((c) => ({
+			id: c.id,
+			method: c.method,
+			c: c.c,
+			uC: c.uC,
+			modeCm1: c.modeCm1 ?? null,
+			validFrom: c.validFrom,
+			validUntil: c.validUntil
+		}));
 }
 
 /** The same, in the API's snake_case names (GET /api/v1/profiles). */
@@ -103,18 +95,7 @@ export async function profilesForUpload(projectId: number) {
 				laserNm: p.latest!.laserNm,
 				detector: p.latest!.detector,
 				filterCutoffCm1: p.latest!.filterCutoffCm1,
-				calibrations: (await profileCalibrations(p.id))
-					.filter((c) => c.status === 'active')
-					.sort((a, b) => b.validFrom.getTime() - a.validFrom.getTime() || b.id - a.id)
-					.map((c) => ({
-						id: c.id,
-						method: c.method,
-						c: c.c,
-						uC: c.uC,
-						modeCm1: c.modeCm1 ?? null,
-						validFrom: c.validFrom,
-						validUntil: c.validUntil
-					}))
+				calibrations: await activeCalibrations(p.id)
 			}))
 	);
 }
@@ -127,17 +108,7 @@ export async function calibrationsForReanalysis(profileVersionId: number | null)
 		.from(instrumentProfileVersions)
 		.where(eq(instrumentProfileVersions.id, profileVersionId));
 	if (!version) return [];
-	return (await profileCalibrations(version.profileId))
-		.filter((c) => c.status === 'active')
-		.sort((a, b) => b.validFrom.getTime() - a.validFrom.getTime() || b.id - a.id)
-		.map((c) => ({
-			id: c.id,
-			method: c.method,
-			c: c.c,
-			uC: c.uC,
-			modeCm1: c.modeCm1 ?? null,
-			validUntil: c.validUntil
-		}));
+	return activeCalibrations(version.profileId);
 }
 
 /**
@@ -183,7 +154,7 @@ export async function resolveRequest(
 		};
 	}
 
-	const found = await findProfile(projectId, withModes.profile);
+	const found = await profileWithNewestVersion(db, projectId, withModes.profile);
 	if (!found) {
 		throw problem(
 			422,
