@@ -135,6 +135,23 @@ describe('a measurement that names a profile', () => {
 		expect(again.body.profile.version_id).not.toBe(after.reading.profile.version_id);
 	});
 
+	it('stops using a calibration once the profile’s laser changed', async () => {
+		const moved = await makeProfile('Moved bench');
+		await addConstant(moved.path, '1', '0.02');
+		const edited = await analyst.post(`${moved.path}?/edit`, {
+			name: 'Moved bench',
+			laser_nm: '633',
+			detector: 'photon-counting',
+			filter_cutoff_cm1: '90',
+			optics_notes: '',
+			notes: ''
+		});
+		expect(edited.status).toBeLessThan(400);
+		const refused = await measure({ ...bandAndExposure, profile: 'Moved bench' });
+		expect(refused.status).toBe(422);
+		expect(refused.body.detail).toContain('present laser (633 nm)');
+	});
+
 	it('shows the profile and its calibration on the reading page, linked', async () => {
 		const { body } = await measure({ ...bandAndExposure, profile: 'Bench P' });
 		const html = await (await analyst.get(`${base}/measurements/${body.id}`)).text();

@@ -54,6 +54,17 @@ describe('chooseCalibration', () => {
 	});
 });
 
+describe('a profile edit that changes the laser or detector', () => {
+	it('stops the calibrations made with the earlier set-up from applying', () => {
+		const made = { madeWith: { laserNm: 532, detector: 'photon-counting' as const } };
+		const at = day('2026-06-01');
+		const now = { laserNm: 532, detector: 'photon-counting' as const };
+		expect(chooseCalibration([cal(1, made)], 520.7, at, now)?.id).toBe(1);
+		expect(chooseCalibration([cal(1, made)], 520.7, at, { ...now, laserNm: 633 })).toBeNull();
+		expect(chooseCalibration([cal(1, made)], 520.7, at, { ...now, detector: 'energy' })).toBeNull();
+	});
+});
+
 describe('splitAtCutoff', () => {
 	it('keeps bands above the cut-off only (at the cut-off is out)', () => {
 		expect(splitAtCutoff([60, 90, 520.7], 90)).toEqual({ kept: [520.7], below: [60, 90] });

@@ -23,6 +23,8 @@ export interface CalibrationCandidate {
 	validFrom: Date;
 	validUntil: Date | null;
 	createdAt: Date;
+	/** The laser and detector of the profile version it was made with, when known. */
+	madeWith?: { laserNm: number; detector: 'photon-counting' | 'energy' } | null;
 }
 
 export interface ProfileFacts {
@@ -37,17 +39,37 @@ export function appliesToBand(c: Pick<CalibrationCandidate, 'modeCm1'>, modeCm1:
 }
 
 /**
- * The calibration a new measurement uses: an active one that holds for the band and had begun
- * by the acquisition time, preferring one still valid then, then the most recently begun.
+ * Whether a calibration was made with the profile's present laser and detector: an edit that
+ * changes either makes the earlier calibrations of the profile stop applying (C depends on both).
+ */
+export function appliesToSetup(
+	c: Pick<CalibrationCandidate, 'madeWith'>,
+	now: Pick<ProfileFacts, 'laserNm' | 'detector'>
+): boolean {
+	if (!c.madeWith) return true;
+	return (
+		Math.abs(c.madeWith.laserNm - now.laserNm) <= LASER_MATCH_NM &&
+		c.madeWith.detector === now.detector
+	);
+}
+
+/**
+ * The calibration a new measurement uses: an active one that holds for the band (and, given the
+ * profile's set-up, was made with it) and had begun by the acquisition time, preferring one still valid then, then the most recently begun.
  * Null when there is none.
  */
 export function chooseCalibration<C extends CalibrationCandidate>(
 	candidates: C[],
 	modeCm1: number,
-	at: Date
+	at: Date,
+	setup?: Pick<ProfileFacts, 'laserNm' | 'detector'>
 ): C | null {
 	const usable = candidates.filter(
-		(c) => c.status === 'active' && c.validFrom <= at && appliesToBand(c, modeCm1)
+		(c) =>
+			c.status === 'active' &&
+			c.validFrom <= at &&
+			appliesToBand(c, modeCm1) &&
+			(!setup || appliesToSetup(c, setup))
 	);
 	const current = (c: C) => (c.validUntil === null || c.validUntil >= at ? 1 : 0);
 	usable.sort(

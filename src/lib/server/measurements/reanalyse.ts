@@ -101,6 +101,7 @@ async function calibrationFor(
 		candidates.find((c) => c.id === calibrationId),
 		calibrationId,
 		settings.profile === undefined ? `#${version.profileId}` : String(settings.profile),
-		settings.modes?.[0] ?? 0
+		settings.modes?.[0] ?? 0,
+		version
 	);
 }

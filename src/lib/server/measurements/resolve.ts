@@ -2,6 +2,7 @@ import { eq } from 'drizzle-orm';
 import {
 	chooseCalibration,
 	appliesToBand,
+	appliesToSetup,
 	splitAtCutoff,
 	type CalibrationCandidate
 } from '../../instrument-flags';
@@ -35,20 +36,45 @@ export function calibrationMode(inputs: CalibrationInputs): number | undefined {
 	return inputs.method === 'constant' ? undefined : inputs.modeCm1;
 }
 
-export const asCandidate = (c: CalibrationRow): CalibrationRow & CalibrationCandidate => ({
+export const asCandidate = (
+	c: CalibrationRow,
+	madeWith: CalibrationCandidate['madeWith'] = null
+): CalibrationRow & CalibrationCandidate => ({
 	...c,
-	modeCm1: calibrationMode(c.inputs)
+	modeCm1: calibrationMode(c.inputs),
+	madeWith
 });
 
 export async function profileCalibrations(profileId: number) {
-	const rows = await db.select().from(calibrations).where(eq(calibrations.profileId, profileId));
-	return rows.map(asCandidate);
+	const rows = await db
+		.select({
+			calibration: calibrations,
+			laserNm: instrumentProfileVersions.laserNm,
+			detector: instrumentProfileVersions.detector
+		})
+		.from(calibrations)
+		.leftJoin(
+			instrumentProfileVersions,
+			eq(instrumentProfileVersions.id, calibrations.profileVersionId)
+		)
+		.where(eq(calibrations.profileId, profileId));
+	return rows.map((r) =>
+		asCandidate(
+			r.calibration,
+			r.laserNm !== null && r.detector !== null
+				? { laserNm: r.laserNm, detector: r.detector }
+				: null
+		)
+	);
 }
 
 /** A profile's active calibrations, most recently begun first, as the screens list them. */
-async function activeCalibrations(profileId: number) {
+async function activeCalibrations(
+	profileId: number,
+	setup?: { laserNm: number; detector: 'photon-counting' | 'energy' }
+) {
 	return (await profileCalibrations(profileId))
-		.filter((c) => c.status === 'active')
+		.filter((c) => c.status === 'active' && (!setup || appliesToSetup(c, setup)))
 		.sort((a, b) => b.validFrom.getTime() - a.validFrom.getTime() || b.id - a.id)
 		.map((c) => ({
 			id: c.id,
@@ -95,7 +121,7 @@ export async function profilesForUpload(projectId: number) {
 				laserNm: p.latest!.laserNm,
 				detector: p.latest!.detector,
 				filterCutoffCm1: p.latest!.filterCutoffCm1,
-				calibrations: await activeCalibrations(p.id)
+				calibrations: await activeCalibrations(p.id, p.latest!)
 			}))
 	);
 }
@@ -104,11 +130,12 @@ export async function profilesForUpload(projectId: number) {
 export async function calibrationsForReanalysis(profileVersionId: number | null) {
 	if (profileVersionId === null) return [];
 	const [version] = await db
-		.select({ profileId: instrumentProfileVersions.profileId })
+		.select()
 		.from(instrumentProfileVersions)
 		.where(eq(instrumentProfileVersions.id, profileVersionId));
 	if (!version) return [];
-	return activeCalibrations(version.profileId);
+	// Only those made with the laser and detector the measurement was taken with.
+	return activeCalibrations(version.profileId, version);
 }
 
 /**
@@ -119,12 +146,17 @@ export function checkNamedCalibration(
 	found: (CalibrationRow & CalibrationCandidate) | undefined,
 	id: number,
 	profileName: string,
-	modeCm1: number
+	modeCm1: number,
+	setup: { laserNm: number; detector: 'photon-counting' | 'energy' }
 ) {
 	const refuse = (message: string) => problem(422, message, { field: 'calibration' });
 	if (!found) throw refuse(`Profile “${profileName}” has no calibration #${id}.`);
 	if (found.status !== 'active')
 		throw refuse(`Calibration #${id} is retired; choose an active one of “${profileName}”.`);
+	if (!appliesToSetup(found, setup))
+		throw refuse(
+			`Calibration #${id} was made with ${found.madeWith?.laserNm} nm and ${found.madeWith?.detector}; the profile now has ${setup.laserNm} nm and ${setup.detector}.`
+		);
 	if (!appliesToBand(found, modeCm1))
 		throw refuse(
 			`Calibration #${id} was made at ${found.modeCm1} cm⁻¹ and does not hold for the band at ${modeCm1} cm⁻¹.`
@@ -183,13 +215,14 @@ export async function resolveRequest(
 						candidates.find((c) => c.id === withModes.calibration),
 						withModes.calibration,
 						profile.name,
-						kept[0]
+						kept[0],
+						version
 					)
-				: chooseCalibration(candidates, kept[0], at);
+				: chooseCalibration(candidates, kept[0], at, version);
 		if (!chosen) {
 			throw problem(
 				422,
-				`Profile “${profile.name}” has no active response calibration for the band at ${kept[0]} cm⁻¹ that had begun by ${at.toISOString().slice(0, 10)}. Add one on the profile's page, or give c_factor and u_c_factor.`,
+				`Profile “${profile.name}” has no active response calibration for the band at ${kept[0]} cm⁻¹, made with its present laser (${version.laserNm} nm) and detector, that had begun by ${at.toISOString().slice(0, 10)}. Add one on the profile's page, or give c_factor and u_c_factor.`,
 				{ field: 'c_factor' }
 			);
 		}
