@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { closeDb } from '../../src/lib/server/db';
 import { DEMO_ACCOUNTS, DEMO_PROJECT_SLUG } from '../../src/lib/server/seed/demo';
+import { DEMO_PROFILE } from '../../src/lib/server/seed/instruments';
 import { openBrowser, signInWithPassword } from '../support/browser';
 import { readFileSync } from 'node:fs';
 import { APP_URL, signIn } from '../support/http';
@@ -76,6 +77,42 @@ describe('upload page', () => {
 		expect(kelvin).toBeGreaterThanOrEqual(340);
 		expect(kelvin).toBeLessThanOrEqual(360);
 		await page.locator('.js-plotly-plot').first().waitFor({ timeout: 30_000 });
+	});
+
+	it('takes laser, detector and C from the demo bench’s profile when one is chosen', async () => {
+		await page.goto(UPLOAD);
+		await page.locator('#file-stokes').setInputFiles(`${SPECTRA}/si-532-stokes.csv`);
+		await page.locator('#file-anti_stokes').setInputFiles(`${SPECTRA}/si-532-anti-stokes.csv`);
+		const option = page.locator('#profile option', { hasText: DEMO_PROFILE });
+		await page.locator('#profile').selectOption((await option.getAttribute('value'))!);
+		await expect
+			.poll(() => page.getByTestId('profile-note').textContent())
+			.toMatch(/calibration #/);
+		// Only the band and the exposures: no laser, detector or C typed.
+		for (const [name, value] of Object.entries({
+			modes: '520.7',
+			exposure_stokes_s: '1',
+			exposure_anti_stokes_s: '4',
+			dark_counts: '300',
+			label: `profile upload ${Date.now()}`
+		}))
+			await page.locator(`#${name}`).fill(value);
+		expect(await page.locator('#detector').inputValue()).toBe('');
+		await page.getByRole('button', { name: 'Upload and analyse' }).click();
+		await page.waitForURL(/\/measurements\/[0-9a-f-]{36}$/, { timeout: 30_000 });
+		const used = page.getByTestId('calibration-used');
+		await used.waitFor({ timeout: 60_000 });
+		await expect
+			.poll(() => page.getByTestId('profile-used').textContent(), { timeout: 60_000 })
+			.toContain(DEMO_PROFILE);
+		expect(await used.locator('a').getAttribute('href')).toMatch(
+			/\/instruments\/\d+#calibration-\d+$/
+		);
+		// The fixture's true 350 K (fixtures/spectra/truth.json), as with the fields typed.
+		const text = (await page.textContent('main')) ?? '';
+		const kelvin = Number(/(\d{3}(?:\.\d+)?)\s*K\s*±/.exec(text)?.[1]);
+		expect(kelvin).toBeGreaterThanOrEqual(340);
+		expect(kelvin).toBeLessThanOrEqual(360);
 	});
 
 	it('names the row of a broken file next to its input, in the browser and from the server', async () => {
