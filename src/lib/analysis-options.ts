@@ -1,4 +1,4 @@
-import type { AnalyzeOptions } from './thermometry/analyze';
+import type { AnalyzeOptions, FileText, PairInputs } from './thermometry/analyze';
 import { modesOf, type MeasurementMetadata } from './measurement-metadata';
 
 /** The engine options a measurement's metadata stands for. Shared by the worker and the browser. */
@@ -19,5 +19,20 @@ export function analysisOptions(m: MeasurementMetadata): AnalyzeOptions {
 		uModeCm1: m.u_mode_cm1,
 		uLaserCm1: m.u_laser_cm1,
 		monteCarlo: m.monte_carlo ? { trials: m.monte_carlo, seed: 1 } : undefined
+	};
+}
+
+export type FilePart = 'stokes' | 'anti_stokes' | 'combined' | 'dark';
+
+/** A measurement's stored files as the engine takes them; shared by the worker and the panel. */
+export function pairInputs(
+	files: Partial<Record<FilePart, FileText>>,
+	settings: Pick<MeasurementMetadata, 'dark_counts'>
+): PairInputs {
+	return {
+		stokes: files.stokes,
+		antiStokes: files.anti_stokes,
+		combined: files.combined,
+		dark: files.dark ?? settings.dark_counts
 	};
 }

@@ -183,6 +183,8 @@ export function modesOf(m: Pick<MeasurementRequest, 'modes' | 'material'>): numb
 export const reanalysisSettings = z.object({
 	lineshape: z.enum(['lorentzian', 'gaussian', 'pseudo-voigt']).optional(),
 	detector: z.enum(['photon-counting', 'energy']).optional(),
+	// Fewer modes than uploaded: a reviewer drops a band that does not belong in the mean.
+	modes: z.array(z.number().positive().max(5000)).min(1).max(8).optional(),
 	c_factor: z.number().positive().optional(),
 	u_c_factor: z.number().nonnegative().optional(),
 	/** A calibration of the measurement's profile whose C ± u replaces the one used before. */

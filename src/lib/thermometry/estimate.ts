@@ -515,7 +515,7 @@ function analyseMode(
 }
 
 /** Inputs shared by every mode (fully correlated between them). */
-function sharedInputs(sources: ResponseSource[]): string[] {
+export function sharedInputs(sources: ResponseSource[]): string[] {
 	const keys = ['laser_wavenumber'];
 	if (sources.length === 1 && sources[0].kind === 'constant') keys.push('c_factor');
 	if (sources.every((s) => s.kind === 'reference')) keys.push('t0');

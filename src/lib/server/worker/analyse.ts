@@ -1,8 +1,8 @@
 import { GetObjectCommand } from '@aws-sdk/client-s3';
 import { and, desc, eq, ne } from 'drizzle-orm';
-import { analysisOptions } from '../../analysis-options';
+import { analysisOptions, pairInputs } from '../../analysis-options';
 import { instrumentFlags } from '../../instrument-flags';
-import { analyzePairDetailed, toJson, type PairInputs } from '../../thermometry/analyze';
+import { analyzePairDetailed, toJson } from '../../thermometry/analyze';
 import { EngineError, type Reading, type Severity } from '../../thermometry/types';
 import { recordAudit } from '../audit';
 import { db } from '../db';
@@ -87,12 +87,7 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 			)
 		)
 	);
-	const inputs: PairInputs = {
-		stokes: texts.stokes,
-		antiStokes: texts.anti_stokes,
-		combined: texts.combined,
-		dark: texts.dark ?? analysis.settings.dark_counts
-	};
+	const inputs = pairInputs(texts, analysis.settings);
 	const options = analysisOptions(analysis.settings);
 
 	let reading: Reading;

@@ -103,6 +103,12 @@ const reanalyseForm = z.preprocess((raw) => {
 	return {
 		lineshape: blank(r.lineshape),
 		detector: blank(r.detector),
+		modes:
+			typeof blank(r.modes) === 'string'
+				? String(r.modes)
+						.split(/[\s;]+/)
+						.map(num)
+				: undefined,
 		c_factor: num(r.c_factor),
 		u_c_factor: num(r.u_c_factor),
 		coverage_factor: num(r.coverage_factor),
@@ -114,6 +120,7 @@ const reanalyseForm = z.preprocess((raw) => {
 const HINTS: Record<string, string> = {
 	lineshape: 'Choose Lorentzian, Gaussian or pseudo-Voigt.',
 	detector: 'Choose photon counting or energy detection.',
+	modes: 'Modes must be Raman shifts in cm⁻¹ separated by spaces, e.g. 418 645.',
 	c_factor: 'C must be a number above zero, e.g. 1.000.',
 	u_c_factor: 'u(C) must be a number, zero or above.',
 	coverage_factor: 'k must be a number from 1 to 5 (2 gives about 95 %).',
@@ -136,7 +143,9 @@ export const actions: Actions = {
 		const changes = Object.fromEntries(
 			Object.entries(parsed.data).filter(
 				([k, v]) =>
-					v !== undefined && found.measurement.metadata[k as keyof ReanalysisSettings] !== v
+					v !== undefined &&
+					JSON.stringify(found.measurement.metadata[k as keyof ReanalysisSettings]) !==
+						JSON.stringify(v)
 			)
 		) as ReanalysisSettings;
 		let analysisId: string | null;
