@@ -4,10 +4,12 @@ import { and, asc, eq, inArray } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
 import { auditLog, projects, readings, signOffs } from '../src/lib/server/db/schema';
+import { readingResponse } from '../src/lib/server/openapi';
 import { signIn, waitForMail, type Session } from './support/http';
 import {
 	fixture,
 	FIXTURE_PAIRS,
+	getJson,
 	measureSi532,
 	postMeasurement,
 	waitForAnalysis
@@ -132,6 +134,30 @@ describe('returning a reading', () => {
 		expect(html).toContain(comment);
 		expect(await queue(s.reviewer)).not.toContain(B.reading);
 	});
+
+	it('marks the reading returned in the measurements table (comment on hover) and in its JSON', async () => {
+		const table = await (await s.viewer.get(`/projects/${world.project.slug}/measurements`)).text();
+		const row = table.slice(
+			table.indexOf(`${page(B)}"`),
+			table.indexOf('</tr>', table.indexOf(`${page(B)}"`))
+		);
+		expect(row).toMatch(/title="Returned: Anti-Stokes window looks clipped \d+"/);
+		expect(row).toContain('Returned');
+		const [entry] = await auditFor(B.reading, 'reading.return');
+		const file = await (await s.viewer.get(`${page(B)}/reading.json`)).json();
+		const api = await getJson(world.token, `/api/v1/measurements/${B.id}/reading`);
+		for (const body of [file, api.body]) {
+			// The documented shape (openapi.ts), checked by the same schema the document is made from.
+			const doc = readingResponse.parse(body);
+			expect(doc.sign_off).toMatchObject({
+				state: 'returned',
+				reviewer: `reviewer ${world.project.slug}`,
+				comment: expect.stringMatching(/^Anti-Stokes window looks clipped/)
+			});
+			const at = Date.parse(doc.sign_off!.decided_at!);
+			expect(Math.abs(at - entry.at.getTime())).toBeLessThan(5_000);
+		}
+	});
 });
 
 describe('approving a reading', () => {
@@ -148,6 +174,13 @@ describe('approving a reading', () => {
 		expect(html).toContain('Budget checked.');
 		const table = await (await s.viewer.get(`/projects/${world.project.slug}/measurements`)).text();
 		expect(table).toContain('Approved');
+		const { body } = await getJson(world.token, `/api/v1/measurements/${A.id}/reading`);
+		expect(readingResponse.parse(body).sign_off).toMatchObject({
+			state: 'approved',
+			reviewer: `reviewer ${world.project.slug}`,
+			comment: 'Budget checked.',
+			decisions: [expect.objectContaining({ decision: 'approved' })]
+		});
 	});
 
 	it('refuses a second decision on an approved reading', async () => {

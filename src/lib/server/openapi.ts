@@ -123,6 +123,27 @@ const profileList = z.object({
 	)
 });
 
+const decision = z.object({
+	decision: z.enum(['approved', 'returned']),
+	reviewer: z.string().nullable().describe('Name (or e-mail) of the reviewer; null once removed.'),
+	decided_at: z.iso.datetime(),
+	comment: z.string()
+});
+
+const signOff = z
+	.object({
+		state: z
+			.enum(['approved', 'returned', 'awaiting', 'not-required'])
+			.describe(
+				'The newest decision, or `awaiting` (none yet) / `not-required` (the project asks for none). An approved reading is locked.'
+			),
+		reviewer: z.string().nullable(),
+		decided_at: z.iso.datetime().nullable(),
+		comment: z.string().nullable(),
+		decisions: z.array(decision).describe('Every decision on this reading, newest first.')
+	})
+	.describe('A reviewer’s sign-off of this reading.');
+
 export const readingResponse = z
 	.object({
 		id: z.string(),
@@ -179,7 +200,10 @@ export const readingResponse = z
 			})
 			.nullable()
 			.optional()
-			.describe('The response calibration C ± u came from; null when C came with the measurement.')
+			.describe('The response calibration C ± u came from; null when C came with the measurement.'),
+		sign_off: signOff
+			.optional()
+			.describe('On the reading endpoint itself; not in measurement listings.')
 	})
 	.describe('A reading, in the engine’s own field names.');
 

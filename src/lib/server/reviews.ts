@@ -43,6 +43,24 @@ export async function decisionsFor(readingId: string) {
 		.orderBy(desc(signOffs.decidedAt), desc(signOffs.id));
 }
 
+/** A reading's sign-off as the reading JSON carries it (openapi.ts `sign_off`). */
+export async function signOffJson(readingId: string, required: boolean) {
+	const decisions = (await decisionsFor(readingId)).map((d) => ({
+		decision: d.decision,
+		reviewer: d.reviewerName ?? d.reviewerEmail ?? null,
+		decided_at: d.decidedAt.toISOString(),
+		comment: d.comment
+	}));
+	const newest = decisions[0];
+	return {
+		state: newest?.decision ?? (required ? 'awaiting' : 'not-required'),
+		reviewer: newest?.reviewer ?? null,
+		decided_at: newest?.decided_at ?? null,
+		comment: newest?.comment ?? null,
+		decisions
+	};
+}
+
 /** Which of these readings are approved (for tables). */
 export async function approvedAmong(readingIds: string[]): Promise<Set<string>> {
 	if (!readingIds.length) return new Set();

@@ -61,7 +61,13 @@ export async function measurementTable(projectId: number, q: TableQuery) {
 			approved:
 				sql<boolean>`exists (select 1 from ${signOffs} s where s.reading_id = "readings"."id" and s.decision = 'approved')`.as(
 					'approved'
-				)
+				),
+			// The comment of the newest decision when that decision sent the reading back.
+			returnedComment: sql<
+				string | null
+			>`(select case when s.decision = 'returned' then s.comment end from ${signOffs} s where s.reading_id = "readings"."id" order by s.decided_at desc, s.id desc limit 1)`.as(
+				'returned_comment'
+			)
 		})
 		.from(readings)
 		.where(eq(readings.measurementId, measurements.id))
@@ -101,7 +107,8 @@ export async function measurementTable(projectId: number, q: TableQuery) {
 					coverageFactor: latest.coverageFactor,
 					worstSeverity: latest.worstSeverity,
 					flags: latest.flags,
-					approved: latest.approved
+					approved: latest.approved,
+					returnedComment: latest.returnedComment
 				},
 				userName: users.name,
 				userEmail: users.email,

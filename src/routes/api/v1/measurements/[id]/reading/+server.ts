@@ -3,6 +3,7 @@ import { requireToken } from '$lib/server/access';
 import { provenanceOf } from '$lib/server/measurements/provenance';
 import { loadMeasurement, readingJson } from '$lib/server/measurements/views';
 import { api, problem } from '$lib/server/problem';
+import { signOffJson } from '$lib/server/reviews';
 
 export const GET = api(async (event) => {
 	const { project } = await requireToken(event, 'measurements:read');
@@ -23,5 +24,8 @@ export const GET = api(async (event) => {
 			status_of_measurement: status
 		});
 	}
-	return json(readingJson(found.reading, await provenanceOf(found.reading.analysisId)));
+	return json({
+		...readingJson(found.reading, await provenanceOf(found.reading.analysisId)),
+		sign_off: await signOffJson(found.reading.id, project.signOffRequired)
+	});
 });

@@ -2,6 +2,7 @@ import { error, json } from '@sveltejs/kit';
 import { requireProject } from '$lib/server/access';
 import { provenanceOf } from '$lib/server/measurements/provenance';
 import { readingJson } from '$lib/server/measurements/views';
+import { signOffJson } from '$lib/server/reviews';
 import { measurementWithReading } from '../reading.server';
 import type { RequestHandler } from './$types';
 
@@ -14,7 +15,11 @@ export const GET: RequestHandler = async (event) => {
 		event.url.searchParams.get('reading')
 	);
 	if (!reading) error(404, 'This measurement has no reading yet.');
-	return json(readingJson(reading, await provenanceOf(reading.analysisId)), {
+	const body = {
+		...readingJson(reading, await provenanceOf(reading.analysisId)),
+		sign_off: await signOffJson(reading.id, project.signOffRequired)
+	};
+	return json(body, {
 		headers: { 'content-disposition': `attachment; filename="reading-${reading.id}.json"` }
 	});
 };
