@@ -5,6 +5,7 @@ import { authHandle } from '$lib/server/auth';
 import { closeDb, db } from '$lib/server/db';
 import { users } from '$lib/server/db/schema';
 import { env } from '$lib/server/env';
+import { problem, problemResponse } from '$lib/server/problem';
 import { stopQueue } from '$lib/server/queue';
 import { startWorker } from '$lib/server/worker';
 
@@ -68,7 +69,26 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(sameOriginForms, authHandle, currentUser, securityHeaders);
+/** SvelteKit refuses a method a route does not export in plain text; the API answers in RFC 9457. */
+const apiMethods: Handle = async ({ event, resolve }) => {
+	const response = await resolve(event);
+	if (response.status !== 405 || !event.url.pathname.startsWith('/api/')) return response;
+	const allow = response.headers.get('allow') ?? 'GET';
+	const refused = problemResponse(
+		problem(405, `${event.request.method} is not offered here; this endpoint answers ${allow}.`),
+		event.url.pathname
+	);
+	refused.headers.set('allow', allow);
+	return refused;
+};
+
+export const handle = sequence(
+	sameOriginForms,
+	authHandle,
+	currentUser,
+	securityHeaders,
+	apiMethods
+);
 
 export const handleError: HandleServerError = ({ error, status }) => {
 	if (status !== 404) console.error(error);

@@ -117,6 +117,10 @@ describe('an approved reading', () => {
 				const response = await api(method, path, body);
 				expect(response.status, `${method} ${path}`).toBeGreaterThanOrEqual(400);
 				expect(response.status, `${method} ${path}`).toBeLessThan(500);
+				// RFC 9457 under /api, also for a method the route does not offer.
+				expect(response.headers.get('content-type'), `${method} ${path}`).toMatch(
+					/^application\/problem\+json/
+				);
 			}
 		}
 		// The collection's POST is the upload: a body that is not a measurement is refused.
