@@ -12,11 +12,11 @@ import { bucket, s3 } from '../src/lib/server/storage';
 import { createToken } from '../src/lib/server/tokens';
 import { APP_URL, waitForMail } from './support/http';
 import {
+	coldSiliconPair,
 	FIXTURE_PAIRS,
 	fixture,
 	getJson,
 	postMeasurement,
-	syntheticCsv,
 	truth,
 	waitForAnalysis
 } from './support/pairs';
@@ -388,19 +388,6 @@ describe('listing and export', () => {
 		);
 	});
 });
-
-// Si at 40 K: the anti-Stokes band is e^(−c₂·520.7/40) ≈ 10⁻⁸ of the Stokes one — not there.
-const coldSiliconPair = (seed: number) =>
-	syntheticCsv({
-		laserNm: 532,
-		modeCm1: 520.7,
-		temperatureK: 40,
-		exponent: 3,
-		lineshape: 'lorentzian',
-		fwhmCm1: 3.5,
-		stokesCounts: 2e5,
-		seed
-	});
 
 describe('mail preferences', () => {
 	it('sends nothing to an uploader who switched the notices off', async () => {

@@ -59,6 +59,19 @@ export function syntheticCsv(spec: SyntheticSpec) {
 	return { stokes: csv(pair.stokes), anti_stokes: csv(pair.antiStokes), truth: pair.truth };
 }
 
+// Si at 40 K: the anti-Stokes band is e^(−c₂·520.7/40) ≈ 10⁻⁸ of the Stokes one — not there.
+export const coldSiliconPair = (seed: number) =>
+	syntheticCsv({
+		laserNm: 532,
+		modeCm1: 520.7,
+		temperatureK: 40,
+		exponent: 3,
+		lineshape: 'lorentzian',
+		fwhmCm1: 3.5,
+		stokesCounts: 2e5,
+		seed
+	});
+
 export type Parts = Partial<
 	Record<'stokes' | 'anti_stokes' | 'combined' | 'dark', Uint8Array | string>
 >;

@@ -1,11 +1,13 @@
 import { z } from 'zod';
 import { measurementMetadata, reanalysisSettings } from '../measurement-metadata';
 import { TOKEN_SCOPES } from '../roles';
+import { SERIES_KINDS } from '../series/kind';
 import {
 	MAX_FILE_BYTES,
 	MAX_REQUEST_BYTES,
 	TOKEN_REQUESTS_PER_MINUTE
 } from './measurements/limits';
+import { seriesReadingRow } from './measurements/export';
 import { fromUploads, uploadRequest } from './measurements/requests';
 import { listFilters } from './measurements/views';
 import { seriesDetail, seriesList, seriesResponse } from './series-json';
@@ -307,6 +309,21 @@ function queryParameters(s: z.ZodObject) {
 	}));
 }
 
+const seriesReadings = z.object({
+	project: z.string().describe('The project slug.'),
+	series: z.string(),
+	kind: z.enum(SERIES_KINDS),
+	readings: z.array(seriesReadingRow).describe('One per measurement, in the series’ order.')
+});
+
+const seriesParameter = {
+	name: 'name',
+	in: 'path',
+	required: true,
+	description: 'The series name, URL-encoded.',
+	schema: { type: 'string' }
+};
+
 const idParameter = {
 	name: 'id',
 	in: 'path',
@@ -489,17 +506,41 @@ export function openApiDocument(origin: string) {
 					tags: ['series'],
 					operationId: 'getSeries',
 					summary: 'One series with its points in columns (newest reading of each measurement)',
-					parameters: [
-						{
-							name: 'name',
-							in: 'path',
-							required: true,
-							description: 'The series name, URL-encoded.',
-							schema: { type: 'string' }
-						}
-					],
+					parameters: [seriesParameter],
 					responses: {
 						'200': { description: 'The series.', content: jsonBody('SeriesDetail') },
+						...errors(401, 403, 404, 429)
+					}
+				}
+			},
+			'/api/v1/series/{name}/readings.csv': {
+				get: {
+					tags: ['series'],
+					operationId: 'exportSeriesReadingsCsv',
+					summary: 'A series’ readings as CSV',
+					description:
+						'The columns of SeriesReadings rows, in that order; empty for null, lists space-separated, numbers at full precision.',
+					parameters: [seriesParameter],
+					responses: {
+						'200': {
+							description: 'One row per measurement of the series, with its newest reading.',
+							content: { 'text/csv': { schema: { type: 'string' } } }
+						},
+						...errors(401, 403, 404, 429)
+					}
+				}
+			},
+			'/api/v1/series/{name}/readings.json': {
+				get: {
+					tags: ['series'],
+					operationId: 'exportSeriesReadingsJson',
+					summary: 'A series’ readings as JSON',
+					parameters: [seriesParameter],
+					responses: {
+						'200': {
+							description: 'One row per measurement of the series, with its newest reading.',
+							content: jsonBody('SeriesReadings')
+						},
 						...errors(401, 403, 404, 429)
 					}
 				}
@@ -565,6 +606,7 @@ export function openApiDocument(origin: string) {
 				Series: schema(seriesResponse, 'output'),
 				SeriesList: schema(seriesList, 'output'),
 				SeriesDetail: schema(seriesDetail, 'output'),
+				SeriesReadings: schema(seriesReadings, 'output'),
 				Problem: schema(problemDetails, 'output')
 			}
 		}

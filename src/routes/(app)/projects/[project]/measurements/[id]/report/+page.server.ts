@@ -1,0 +1,53 @@
+import { requireProject } from '$lib/server/access';
+import { provenanceOf } from '$lib/server/measurements/provenance';
+import { decisionsFor } from '$lib/server/reviews';
+import type { Reading } from '$lib/thermometry/types';
+import { measurementWithReading, readingHistory } from '../reading.server';
+import type { PageServerLoad } from './$types';
+
+/** The printable report of one reading: the newest, or `?reading=<id>` as on the reading page. */
+export const load: PageServerLoad = async (event) => {
+	const { project } = await requireProject(event, 'read');
+	const found = await measurementWithReading(
+		project.id,
+		event.params.id,
+		event.url.searchParams.get('reading')
+	);
+	const { measurement: m, reading } = found;
+	const [history, provenance, decisions] = await Promise.all([
+		readingHistory(m.id),
+		reading ? provenanceOf(reading.analysisId) : null,
+		reading ? decisionsFor(reading.id) : []
+	]);
+	return {
+		measurement: {
+			id: m.id,
+			status: m.status,
+			label: m.label,
+			batch: m.batch,
+			series: m.series,
+			x: m.x,
+			y: m.y,
+			laserPowerMw: m.laserPowerMw,
+			acquiredAt: m.acquiredAt,
+			createdAt: m.createdAt,
+			metadata: m.metadata
+		},
+		files: found.files.map((f) => ({ part: f.part, fileName: f.fileName, sha256: f.sha256 })),
+		reading: reading
+			? {
+					id: reading.id,
+					createdAt: reading.createdAt,
+					result: reading.result as unknown as Reading,
+					spectra: reading.spectra
+				}
+			: null,
+		latest: reading == null || reading.id === found.latestReadingId,
+		// As on the reading page: the settings this reading was made with.
+		settings: history.find((h) => h.id === reading?.id)?.settings ?? m.metadata,
+		provenance,
+		decisions,
+		signOffRequired: project.signOffRequired,
+		printedAt: new Date()
+	};
+};
