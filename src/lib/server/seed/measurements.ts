@@ -119,6 +119,7 @@ function coolDownCases(): DemoCase[] {
 	return Array.from({ length: 8 }, (_, i) => ({
 		spec: silicon(300 + 160 * Math.exp(-i / 2.5), 400 + i),
 		metadata: {
+			...ON_PROFILE,
 			label: `film A3 cool-down +${20 * i} min`,
 			series: 'film A3 cool-down',
 			acquired_at: new Date(Date.UTC(2026, 10, 20, 14, 20 * i)).toISOString()
