@@ -167,6 +167,32 @@ describe('what-if panel figures', () => {
 		expectSameFigures(one, worker(files, TWO, { modes: [418], coverage_factor: 3 }));
 	});
 
+	it('a combined file with a dark file and a baseline: the same parts the worker reads', () => {
+		const files: Files = {
+			combined: read('si-785-combined.csv'),
+			dark: read('si-785-dark.csv')
+		};
+		const metadata = stored({
+			laser_nm: 785,
+			modes: [520.7],
+			exposure_stokes_s: 2,
+			baseline: 'polynomial',
+			c_factor: 1,
+			u_c_factor: 0.02
+		});
+		const evaluate = whatIf(files, metadata);
+		expectSameFigures(evaluate(choiceOf(metadata)), worker(files, metadata, {}));
+		const change: WhatIfChoice = {
+			...choiceOf(metadata),
+			lineshape: 'pseudo-voigt',
+			u_c_factor: 0
+		};
+		expectSameFigures(
+			evaluate(change),
+			worker(files, metadata, { lineshape: 'pseudo-voigt', u_c_factor: 0 })
+		);
+	});
+
 	it('refuses what the engine refuses, with the engine’s reason', () => {
 		const evaluate = whatIf(SI_FILES, SI);
 		expect(() => evaluate({ ...choiceOf(SI), modes: [1332.5] })).toThrow(/1332\.5 cm⁻¹/);
