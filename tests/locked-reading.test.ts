@@ -7,7 +7,13 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, db } from '../src/lib/server/db';
 import { measurements, readings, signOffs } from '../src/lib/server/db/schema';
 import { APP_URL, signIn, type Session } from './support/http';
-import { measureSi532, waitForAnalysis } from './support/pairs';
+import {
+	fixture,
+	FIXTURE_PAIRS,
+	measureSi532,
+	postMeasurement,
+	waitForAnalysis
+} from './support/pairs';
 import { makeWorld, PASSWORD, type World } from './support/world';
 
 let world: World;
@@ -84,12 +90,15 @@ describe('an approved reading', () => {
 			['outsider', `${page(A)}?/reanalyse`, { lineshape: 'gaussian' }, 404],
 			['viewer', `${page(A)}?/reanalyse`, { lineshape: 'gaussian' }, 403],
 			// The reading addressed through another measurement's page.
-			['owner', `${page(B)}?/return`, { reading: A.reading, comment: 'sideways' }, 409]
+			['owner', `${page(B)}?/return`, { reading: A.reading, comment: 'sideways' }, 404],
+			['reviewer', `${page(B)}?/approve`, { reading: A.reading }, 404],
+			['reviewer', `${page(A)}?/approve`, { reading: B.reading }, 404]
 		];
 		for (const [who, path, fields, status] of tries) {
 			const response = await s[who].post(path, fields);
 			expect(`${who} ${path} → ${response.status}`).toBe(`${who} ${path} → ${status}`);
 		}
+		expect(await db.select().from(signOffs).where(eq(signOffs.readingId, B.reading))).toEqual([]);
 		// The project's settings: sign-off switched off and on again leaves the decision alone.
 		const settings = `/projects/${world.project.slug}/settings?/save`;
 		const fields = { name: world.project.name, description: '' };
@@ -110,7 +119,9 @@ describe('an approved reading', () => {
 			`/api/v1/measurements/${A.id}/reading`,
 			`/api/v1/measurements/${A.id}/reading/${A.reading}`,
 			`/api/v1/readings/${A.reading}`,
-			'/api/v1/readings.csv'
+			'/api/v1/readings.csv',
+			'/api/v1/profiles',
+			`/api/v1/series/locked-${A.id}`
 		];
 		for (const path of routes) {
 			for (const method of ['POST', 'PUT', 'PATCH', 'DELETE']) {
@@ -123,8 +134,10 @@ describe('an approved reading', () => {
 				);
 			}
 		}
-		// The collection's POST is the upload: a body that is not a measurement is refused.
-		expect((await api('POST', '/api/v1/measurements', body)).status).toBeGreaterThanOrEqual(400);
+		// The collections' POSTs make a measurement or a series: a body that is neither is refused.
+		for (const path of ['/api/v1/measurements', '/api/v1/series']) {
+			expect((await api('POST', path, body)).status, path).toBeGreaterThanOrEqual(400);
+		}
 		expect(await snapshot()).toEqual(before);
 		expect(await apiReading()).toBe(apiBefore);
 	});
@@ -148,6 +161,74 @@ describe('an approved reading', () => {
 		expect(fresh).toContain('Awaiting a reviewer');
 		expect(fresh).not.toContain('Approved — locked');
 		expect(JSON.parse(await apiReading()).id).toBe(newer);
+	}, 60_000);
+});
+
+describe('an approved reading made with a profile’s calibration', () => {
+	it('is not changed when the profile is edited or the calibration retired', async () => {
+		const owner = s.owner;
+		const base = `/projects/${world.project.slug}`;
+		const profile = {
+			name: 'Locked bench',
+			laser_nm: '532',
+			detector: 'photon-counting',
+			filter_cutoff_cm1: '90',
+			optics_notes: '',
+			notes: ''
+		};
+		const created = await owner.post(`${base}/instruments?/create`, profile);
+		expect(created.status).toBe(303);
+		const path = created.headers.get('location')!;
+		const added = await owner.post(`${path}?/addConstant`, {
+			c: '1',
+			u_c: '0.02',
+			source: 'test certificate'
+		});
+		expect(added.status).toBeLessThan(400);
+		const { laser_nm: _laser, ...band } = FIXTURE_PAIRS[0].metadata;
+		const parts = Object.fromEntries(
+			Object.entries(FIXTURE_PAIRS[0].files).map(([part, name]) => [part, fixture(name)])
+		);
+		const response = await postMeasurement(world.token, parts, {
+			...band,
+			profile: 'Locked bench',
+			label: 'locked P'
+		});
+		expect(response.status).toBe(202);
+		const id = ((await response.json()) as { id: string }).id;
+		const done = await waitForAnalysis(world.token, id);
+		expect(done.status).toBe('done');
+		const P = { id, reading: done.reading.id as string };
+		expect((await s.reviewer.post(`${page(P)}?/approve`, { reading: P.reading })).status).toBe(303);
+		const rowOf = async () => {
+			const [row] = await db.select().from(readings).where(eq(readings.id, P.reading));
+			const decisions = await db.select().from(signOffs).where(eq(signOffs.readingId, P.reading));
+			const json = JSON.parse(
+				await (await s.viewer.get(`${page(P)}/reading.json?reading=${P.reading}`)).text()
+			);
+			return { row: JSON.stringify(row), decisions: JSON.stringify(decisions), json };
+		};
+		const before = await rowOf();
+		expect(before.json.calibration).not.toBeNull();
+
+		const edited = await owner.post(`${path}?/edit`, { ...profile, laser_nm: '532.1' });
+		expect(edited.status).toBe(303);
+		const html = await (await owner.get(path)).text();
+		for (const [, cal] of html.matchAll(/id="calibration-(\d+)"/g)) {
+			expect((await owner.post(`${path}?/retire`, { id: cal })).status).toBeLessThan(400);
+		}
+		const after = await rowOf();
+		expect(after.row).toBe(before.row);
+		expect(after.decisions).toBe(before.decisions);
+		// The calibration's own state is shown as it is now (it was retired after the sign-off);
+		// everything the reading itself says stays as it was.
+		expect(after.json.calibration.status).toBe('retired');
+		const { status: _was, ...calibrationBefore } = before.json.calibration;
+		const { status: _now, ...calibrationAfter } = after.json.calibration;
+		expect({ ...after.json, calibration: calibrationAfter }).toEqual({
+			...before.json,
+			calibration: calibrationBefore
+		});
 	}, 60_000);
 });
 

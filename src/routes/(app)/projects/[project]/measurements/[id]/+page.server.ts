@@ -175,6 +175,8 @@ function signOff(decide: typeof returnReading) {
 		const { user, project } = await requireProject(event, 'sign-off');
 		const parsed = await parseForm(event.request, signOffForm);
 		if (!parsed.ok) return parsed.failure;
+		// The decision is about a reading of the measurement in the address, not any of the project's.
+		await measurementWithReading(project.id, event.params.id, parsed.data.reading);
 		const result: SignOffResult = await decide(
 			project.id,
 			parsed.data.reading,
