@@ -1,6 +1,6 @@
 // Plotly touches `self` on import, so it is loaded in the browser only, once, on first use.
 import type PlotlyDefault from 'plotly.js-dist-min';
-import type { Config, Layout, LayoutAxis } from 'plotly.js-dist-min';
+import type { Config, Data, Layout, LayoutAxis } from 'plotly.js-dist-min';
 
 type PlotlyModule = typeof PlotlyDefault;
 
@@ -53,3 +53,23 @@ export const config: Partial<Config> = {
 	responsive: true,
 	modeBarButtonsToRemove: ['lasso2d', 'select2d', 'autoScale2d']
 };
+
+/**
+ * A figure drawn once as an SVG data URL, for print: vector on paper, a fixed size the page's
+ * layout cannot change, no toolbar. WebGL traces do not survive it; give SVG ones.
+ */
+export async function stillPicture(
+	data: Data[],
+	layout: Partial<Layout>,
+	width: number,
+	height: number
+): Promise<string> {
+	const Plotly = await loadPlotly();
+	return Plotly.toImage(
+		{ data, layout: { ...layout, width, height } },
+		{ format: 'svg', width, height }
+	);
+}
+
+/** Width of a still picture in CSS px: A4 less 15 mm margins is about 680 px. */
+export const STILL_WIDTH = 680;

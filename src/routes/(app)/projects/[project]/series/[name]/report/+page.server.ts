@@ -23,7 +23,6 @@ export const load: PageServerLoad = async (event) => {
 		...figures,
 		rows: all.slice(0, TABLE_ROWS),
 		tableRows: TABLE_ROWS,
-		laserNm: all.find((r) => r.laser_nm != null)?.laser_nm ?? undefined,
 		printedAt: new Date()
 	};
 };
