@@ -46,6 +46,14 @@ describe('the what-if panel', () => {
 		expect(same(start.t, stored.temperature_k)).toBe(true);
 		expect(same(start.u, stored.expanded_uncertainty_k)).toBe(true);
 
+		// A Gaussian on these Lorentzian bands (fixtures/spectra/README.md) fits badly, and says so.
+		const panel = page.locator('section[aria-labelledby="what-if-head"]');
+		await page.locator('#wi-lineshape').selectOption('gaussian');
+		await expect.poll(() => panel.textContent()).toContain('Flags the fit raises');
+		expect(await panel.textContent()).toContain('Reduced χ²');
+		await page.locator('#wi-lineshape').selectOption('lorentzian');
+		await expect.poll(() => panel.textContent()).not.toContain('Flags the fit raises');
+
 		await page.locator('#wi-k').fill('3');
 		await expect.poll(async () => (await panelFigures()).u).not.toBe(start.u);
 		const byK = await panelFigures();
