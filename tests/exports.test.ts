@@ -35,16 +35,47 @@ const page = (format: string) => `/projects/${world.project.slug}/series/${enc}/
 
 beforeAll(async () => {
 	[world, stranger] = await Promise.all([makeWorld('exports'), makeWorld('exports-other')]);
+	// One measurement takes laser, detector and C from an instrument profile and its calibration.
+	const analyst = await signIn(world.people.analyst.email, PASSWORD);
+	const profile = await analyst.post(`/projects/${world.project.slug}/instruments?/create`, {
+		name: 'Export bench',
+		laser_nm: '532',
+		detector: 'photon-counting',
+		filter_cutoff_cm1: '90',
+		optics_notes: '',
+		notes: ''
+	});
+	expect(profile.status).toBe(303);
+	const added = await analyst.post(`${profile.headers.get('location')}?/addConstant`, {
+		c: '0.97',
+		u_c: '0.015',
+		source: 'test certificate',
+		valid_from: '2026-01-01'
+	});
+	expect(added.status).toBeLessThan(400);
+	const pairParts = (pair: (typeof FIXTURE_PAIRS)[number]) =>
+		Object.fromEntries(Object.entries(pair.files).map(([k, f]) => [k, fixture(f)]));
+	const { laser_nm: _laser, ...siBand } = FIXTURE_PAIRS[0].metadata;
 	const uploads = [
 		...FIXTURE_PAIRS.map((pair) => ({
-			parts: Object.fromEntries(Object.entries(pair.files).map(([k, f]) => [k, fixture(f)])),
-			metadata: { ...pair.metadata, label: pair.id } as Record<string, unknown>
+			parts: pairParts(pair),
+			metadata: { ...pair.metadata, ...C, label: pair.id } as Record<string, unknown>
 		})),
+		{
+			parts: pairParts(FIXTURE_PAIRS[0]),
+			metadata: { ...siBand, profile: 'Export bench', label: 'on the bench profile' }
+		},
 		(() => {
 			const cold = coldSiliconPair(11);
 			return {
 				parts: { stokes: cold.stokes, anti_stokes: cold.anti_stokes },
-				metadata: { laser_nm: 532, modes: [520.7], x_axis: 'raman-shift', label: 'cold, "quoted"' }
+				metadata: {
+					laser_nm: 532,
+					modes: [520.7],
+					x_axis: 'raman-shift',
+					...C,
+					label: 'cold, "quoted"'
+				}
 			};
 		})()
 	];
@@ -52,7 +83,6 @@ beforeAll(async () => {
 		uploads.map(async (u, i) => {
 			const response = await postMeasurement(world.token, u.parts, {
 				...u.metadata,
-				...C,
 				series: SERIES,
 				batch: `B-${i + 1}`,
 				laser_power_mw: 1.5 + i / 3,
@@ -60,8 +90,12 @@ beforeAll(async () => {
 				y: i === 0 ? undefined : -i,
 				acquired_at: new Date(Date.UTC(2026, 10, 1, 8, i, 0, 123)).toISOString()
 			});
-			expect(response.status).toBe(202);
-			return (await response.json()).id as string;
+			const body = await response.json();
+			expect({ status: response.status, detail: body.detail }).toEqual({
+				status: 202,
+				detail: undefined
+			});
+			return body.id as string;
 		})
 	);
 	ids.push(...made);
@@ -165,11 +199,11 @@ describe('series readings export', () => {
 				laser_nm: r.laser_nm,
 				flags: r.flags.map((f: { code: string }) => f.code),
 				modes_cm1: r.modes.map((m: { mode_cm1: number }) => m.mode_cm1),
-				// What was uploaded: a constant C, no profile or calibration named.
-				c_factor: C.c_factor,
-				u_c_factor: C.u_c_factor,
-				calibration_id: null,
-				profile_version_id: null,
+				// C as uploaded, or from the calibration the reading API names with its profile version.
+				c_factor: r.calibration?.c ?? C.c_factor,
+				u_c_factor: r.calibration?.u_c ?? C.u_c_factor,
+				calibration_id: r.calibration?.id ?? null,
+				profile_version_id: r.profile?.version_id ?? null,
 				series: SERIES,
 				batch: `B-${i + 1}`
 			});
@@ -179,9 +213,20 @@ describe('series readings export', () => {
 				...r.flags.map((f: { severity: string }) => severities.indexOf(f.severity))
 			);
 			expect(row.worst_severity).toBe(severities[worst]);
+			// The newest sign-off decision, as the reading API gives it.
+			const decided = ['approved', 'returned'].includes(r.sign_off.state);
+			expect(row).toMatchObject({
+				sign_off: decided ? r.sign_off.state : null,
+				signed_off_by: r.sign_off.reviewer,
+				signed_off_at: r.sign_off.decided_at
+			});
 		}
 		// No detector was named, so photon counting applied: exponent n = 3 (physics.md §1).
 		expect(json.readings[0]).toMatchObject({ detector: 'photon-counting', exponent: 3 });
+		const onProfile = json.readings.filter((row) => row.calibration_id != null);
+		expect(onProfile).toHaveLength(1);
+		expect(onProfile[0]).toMatchObject({ label: 'on the bench profile', c_factor: 0.97 });
+		expect(onProfile[0].profile_version_id).toEqual(expect.any(Number));
 		// 40 K silicon gives no temperature: an empty cell in CSV, null in JSON, never a number.
 		expect(json.readings.at(-1)).toMatchObject({ temperature_k: null, worst_severity: 'error' });
 	});
