@@ -198,7 +198,11 @@ export const readingResponse = z
 				mode_cm1: nullableNumber.describe('The band it was made at; null for a constant.'),
 				valid_from: z.iso.datetime(),
 				valid_until: z.iso.datetime().nullable(),
-				status: z.enum(['active', 'retired'])
+				status: z
+					.enum(['active', 'retired'])
+					.describe(
+						'The calibration’s status now, not when the reading was made: a calibration retired later still stands behind the readings made with it.'
+					)
 			})
 			.nullable()
 			.optional()
