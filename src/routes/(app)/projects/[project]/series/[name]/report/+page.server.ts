@@ -18,11 +18,11 @@ export const load: PageServerLoad = async (event) => {
 		seriesPage(event as unknown as Parameters<typeof seriesPage>[0]) as Promise<SeriesPageData>,
 		seriesReadings(project.id, event.params.name)
 	]);
-	const all = found?.rows ?? [];
+	// What only the page's forms need stays out of the report.
+	const { candidates: _candidates, subscribed: _subscribed, ...shown } = figures;
 	return {
-		...figures,
-		rows: all.slice(0, TABLE_ROWS),
-		tableRows: TABLE_ROWS,
+		...shown,
+		rows: (found?.rows ?? []).slice(0, TABLE_ROWS),
 		printedAt: new Date()
 	};
 };
