@@ -13,9 +13,13 @@ import { requestReanalysis } from '$lib/server/measurements/reanalyse';
 import { calibrationsForReanalysis } from '$lib/server/measurements/resolve';
 import { Problem } from '$lib/server/problem';
 import { reanalysisSettings, type ReanalysisSettings } from '$lib/measurement-metadata';
-import type { Reading } from '$lib/thermometry/types';
 import type { Actions, PageServerLoad } from './$types';
-import { measurementWithReading, readingHistory } from './reading.server';
+import {
+	measurementFacts,
+	measurementWithReading,
+	readingFacts,
+	readingHistory
+} from './reading.server';
 
 export const load: PageServerLoad = async (event) => {
 	const { project } = await requireProject(event, 'read');
@@ -32,20 +36,7 @@ export const load: PageServerLoad = async (event) => {
 		calibrationsForReanalysis(found.analysis?.profileVersionId ?? null)
 	]);
 	return {
-		measurement: {
-			id: m.id,
-			status: m.status,
-			label: m.label,
-			batch: m.batch,
-			series: m.series,
-			x: m.x,
-			y: m.y,
-			laserPowerMw: m.laserPowerMw,
-			acquiredAt: m.acquiredAt,
-			createdAt: m.createdAt,
-			metadata: m.metadata,
-			uploadedBy: uploader
-		},
+		measurement: { ...measurementFacts(m), uploadedBy: uploader },
 		files: found.files.map((f) => ({
 			part: f.part,
 			fileName: f.fileName,
@@ -57,10 +48,7 @@ export const load: PageServerLoad = async (event) => {
 		latestReadingId: found.latestReadingId,
 		reading: reading
 			? {
-					id: reading.id,
-					createdAt: reading.createdAt,
-					result: reading.result as unknown as Reading,
-					spectra: reading.spectra,
+					...readingFacts(reading),
 					settings: history.find((h) => h.id === reading.id)?.settings ?? m.metadata,
 					provenance
 				}

@@ -4,6 +4,7 @@ import { z } from 'zod';
 import { db } from '$lib/server/db';
 import { acquisitionTokens, analyses, readings, users } from '$lib/server/db/schema';
 import { loadMeasurement } from '$lib/server/measurements/views';
+import type { Reading } from '$lib/thermometry/types';
 
 /**
  * A measurement with the reading a person asked for (`?reading=<id>`, else the newest), the
@@ -49,4 +50,33 @@ export async function readingHistory(measurementId: string) {
 		.leftJoin(acquisitionTokens, eq(acquisitionTokens.id, analyses.requestedByToken))
 		.where(eq(readings.measurementId, measurementId))
 		.orderBy(desc(readings.createdAt));
+}
+
+type Found = Awaited<ReturnType<typeof measurementWithReading>>;
+
+/** What the reading page and the printable report both show of the measurement itself. */
+export function measurementFacts(m: Found['measurement']) {
+	return {
+		id: m.id,
+		status: m.status,
+		label: m.label,
+		batch: m.batch,
+		series: m.series,
+		x: m.x,
+		y: m.y,
+		laserPowerMw: m.laserPowerMw,
+		acquiredAt: m.acquiredAt,
+		createdAt: m.createdAt,
+		metadata: m.metadata
+	};
+}
+
+/** The shown reading for a page: its engine result, plot windows and when it was made. */
+export function readingFacts(reading: NonNullable<Found['reading']>) {
+	return {
+		id: reading.id,
+		createdAt: reading.createdAt,
+		result: reading.result as unknown as Reading,
+		spectra: reading.spectra
+	};
 }

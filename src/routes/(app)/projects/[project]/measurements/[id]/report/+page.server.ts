@@ -1,8 +1,12 @@
 import { requireProject } from '$lib/server/access';
 import { provenanceOf } from '$lib/server/measurements/provenance';
 import { decisionsFor } from '$lib/server/reviews';
-import type { Reading } from '$lib/thermometry/types';
-import { measurementWithReading, readingHistory } from '../reading.server';
+import {
+	measurementFacts,
+	measurementWithReading,
+	readingFacts,
+	readingHistory
+} from '../reading.server';
 import type { PageServerLoad } from './$types';
 
 /** The printable report of one reading: the newest, or `?reading=<id>` as on the reading page. */
@@ -20,28 +24,9 @@ export const load: PageServerLoad = async (event) => {
 		reading ? decisionsFor(reading.id) : []
 	]);
 	return {
-		measurement: {
-			id: m.id,
-			status: m.status,
-			label: m.label,
-			batch: m.batch,
-			series: m.series,
-			x: m.x,
-			y: m.y,
-			laserPowerMw: m.laserPowerMw,
-			acquiredAt: m.acquiredAt,
-			createdAt: m.createdAt,
-			metadata: m.metadata
-		},
+		measurement: measurementFacts(m),
 		files: found.files.map((f) => ({ part: f.part, fileName: f.fileName, sha256: f.sha256 })),
-		reading: reading
-			? {
-					id: reading.id,
-					createdAt: reading.createdAt,
-					result: reading.result as unknown as Reading,
-					spectra: reading.spectra
-				}
-			: null,
+		reading: reading ? readingFacts(reading) : null,
 		latest: reading == null || reading.id === found.latestReadingId,
 		// As on the reading page: the settings this reading was made with.
 		settings: history.find((h) => h.id === reading?.id)?.settings ?? m.metadata,
