@@ -165,22 +165,26 @@ export async function runAnalysis(analysisId: string): Promise<Outcome> {
 /** Warnings from the instrument profile version and calibration the settings came from. */
 async function profileFlags(analysis: typeof analyses.$inferSelect) {
 	if (analysis.profileVersionId === null) return [];
-	const [version] = await db
-		.select()
-		.from(instrumentProfileVersions)
-		.where(eq(instrumentProfileVersions.id, analysis.profileVersionId));
-	const [calibration] = analysis.calibrationId
-		? await db.select().from(calibrations).where(eq(calibrations.id, analysis.calibrationId))
-		: [];
-	const measurement = await db.query.measurements.findFirst({
-		where: eq(measurements.id, analysis.measurementId),
-		columns: { acquiredAt: true, createdAt: true }
-	});
+	const [row] = await db
+		.select({
+			version: instrumentProfileVersions,
+			calibration: calibrations,
+			acquiredAt: measurements.acquiredAt,
+			createdAt: measurements.createdAt
+		})
+		.from(analyses)
+		.innerJoin(measurements, eq(measurements.id, analyses.measurementId))
+		.leftJoin(
+			instrumentProfileVersions,
+			eq(instrumentProfileVersions.id, analyses.profileVersionId)
+		)
+		.leftJoin(calibrations, eq(calibrations.id, analyses.calibrationId))
+		.where(eq(analyses.id, analysis.id));
 	return instrumentFlags({
 		settings: analysis.settings,
-		profile: version ?? null,
-		calibration: calibration ?? null,
-		at: measurement?.acquiredAt ?? measurement?.createdAt ?? new Date()
+		profile: row?.version ?? null,
+		calibration: row?.calibration ?? null,
+		at: row?.acquiredAt ?? row?.createdAt ?? new Date()
 	});
 }
 
